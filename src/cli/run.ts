@@ -1,0 +1,150 @@
+// The command line: parses flags, calls the library, prints, and returns an exit code. Only
+// main.ts reads process.argv and exits; tests drive run() directly.
+
+import path from 'node:path';
+import { Command, CommanderError, Option } from 'commander';
+import { ExitCode, InputError, StraylightError, UsageError } from '../errors.js';
+import { writeFileAtomic } from '../io/atomic-write.js';
+import { loadShot } from '../io/load-shot.js';
+import { checkOutputTemplate } from '../shot/resolve.js';
+import type { ResolvedShot } from '../shot/types.js';
+import { encodeFrame, renderSequence, type FrameRange } from '../render/sequence.js';
+import { Progress } from './progress.js';
+import { shotSummary } from './summary.js';
+
+export interface CliIO {
+  stdout: (text: string) => void;
+  stderr: (text: string) => void;
+  stderrIsTTY: boolean;
+  /** aborted on SIGINT/SIGTERM: renders stop between frames */
+  signal?: AbortSignal;
+}
+
+/** Parse "A-B" or "A" (negative numbers allowed: "-5--1"). */
+export function parseFrameRange(text: string, shot: ResolvedShot): FrameRange {
+  const m = /^\s*(-?\d+)\s*(?:-\s*(-?\d+))?\s*$/.exec(text);
+  if (!m) throw new UsageError(`--frames: expected A-B or A (e.g. 1001-1010), found "${text}"`);
+  const first = Number(m[1]);
+  const last = m[2] === undefined ? first : Number(m[2]);
+  if (last < first) throw new UsageError(`--frames: the range ${text} runs backwards`);
+  const { first: sf, last: sl } = shot.frame;
+  if (first < sf || last > sl) throw new UsageError(`--frames: ${first}-${last} lies outside the shot's range ${sf}-${sl}`);
+  return { first, last };
+}
+
+function positiveInt(name: string) {
+  return (v: string): number => {
+    const n = Number(v);
+    if (!/^\s*\d+\s*$/.test(v) || !Number.isInteger(n) || n < 1) throw new UsageError(`${name}: expected a whole number of at least 1, found "${v}"`);
+    return n;
+  };
+}
+
+function integer(name: string) {
+  return (v: string): number => {
+    if (!/^\s*-?\d+\s*$/.test(v)) throw new UsageError(`${name}: expected a whole number, found "${v}"`);
+    return Number(v);
+  };
+}
+
+export function buildProgram(io: CliIO, setExit: (code: number) => void): Command {
+  const program = new Command('straylight')
+    .description('Render physically based lens-flare passes for shots: a YAML shot file in, numbered frames out.')
+    .version('0.1.0')
+    .exitOverride()
+    .configureOutput({
+      writeOut: (s) => io.stdout(s),
+      writeErr: (s) => io.stderr(s),
+    })
+    .showHelpAfterError('(run with --help for usage)');
+
+  program
+    .command('render')
+    .description('render the shot (or some of its frames) to its numbered frame sequence')
+    .argument('<shot>', 'shot file (YAML)')
+    .option('--frames <A-B>', 'render only frames A to B (inside the shot\'s range)')
+    .option('--out <template>', 'output path template with #### or %04d, relative to the current folder (default: the shot\'s output.path)')
+    .addOption(new Option('--jobs <n>', 'worker count (frames currently render one at a time; parallel rendering is planned)').argParser(positiveInt('--jobs')))
+    .option('--quiet', 'print nothing but errors')
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; quiet?: boolean }) => {
+      const shot = loadShot(shotFile);
+      const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
+      let template: string | undefined;
+      if (opts.out) {
+        const problem = checkOutputTemplate(opts.out, shot.output.format);
+        if (problem) throw new UsageError(`--out: ${problem}`);
+        template = path.resolve(opts.out);
+      }
+      const total = frames.last - frames.first + 1;
+      const progress = opts.quiet ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
+      const result = await renderSequence(shot, {
+        frames,
+        template,
+        signal: io.signal,
+        onFrame: (e) => {
+          if (e.kind === 'failed') io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame} failed: ${e.error}\n`);
+          progress?.frameDone(e.kind === 'written');
+        },
+      });
+      progress?.finish();
+      const dest = template ?? shot.output.template;
+      if (result.interrupted) {
+        io.stderr(`interrupted: ${result.written.length} of ${total} frames written to ${dest}; finished frames are whole\n`);
+        setExit(ExitCode.interrupted);
+      } else if (result.failed.length > 0) {
+        io.stderr(`${result.failed.length} of ${total} frames failed (${result.failed.map((f) => f.frame).join(', ')}); the other ${result.written.length} were written\n`);
+        setExit(ExitCode.framesFailed);
+      } else if (progress) {
+        io.stderr(`rendered ${total} frames to ${dest} in ${progress.elapsedSeconds().toFixed(1)} s\n`);
+      }
+    });
+
+  program
+    .command('check')
+    .description('validate a shot file and print what it will render')
+    .argument('<shot>', 'shot file (YAML)')
+    .action((shotFile: string) => {
+      const shot = loadShot(shotFile);
+      io.stdout(shotSummary(shot, shotFile));
+    });
+
+  program
+    .command('still')
+    .description('render one frame to a file')
+    .argument('<shot>', 'shot file (YAML)')
+    .requiredOption('--frame <n>', 'frame number', integer('--frame'))
+    .requiredOption('--out <file>', 'output PNG file')
+    .action((shotFile: string, opts: { frame: number; out: string }) => {
+      const shot = loadShot(shotFile);
+      if (path.extname(opts.out).toLowerCase() !== '.png') throw new UsageError(`--out: the file must end in .png, found "${opts.out}"`);
+      writeFileAtomic(path.resolve(opts.out), encodeFrame(shot, opts.frame));
+    });
+
+  return program;
+}
+
+export async function run(argv: string[], io: CliIO): Promise<number> {
+  let code: number = ExitCode.ok;
+  const program = buildProgram(io, (c) => (code = c));
+  try {
+    await program.parseAsync(argv, { from: 'user' });
+    return code;
+  } catch (e) {
+    if (e instanceof CommanderError) {
+      if (e.code === 'commander.helpDisplayed' || e.code === 'commander.version' || e.code === 'commander.help') return ExitCode.ok;
+      if (e.code === 'commander.executeSubCommandAsync') return ExitCode.internal;
+      return ExitCode.usage;
+    }
+    if (e instanceof StraylightError) {
+      const n = e instanceof InputError || e.exitCode !== ExitCode.badInput ? '' : '';
+      io.stderr(`${e.message}\n${n}`);
+      if (e.exitCode === ExitCode.badInput && 'diagnostics' in e) {
+        const count = (e as { diagnostics: unknown[] }).diagnostics.length;
+        io.stderr(`straylight: ${count} problem${count === 1 ? '' : 's'} found; nothing was rendered\n`);
+      }
+      return e.exitCode;
+    }
+    io.stderr(`straylight: internal error (please report it):\n${(e as Error).stack ?? String(e)}\n`);
+    return ExitCode.internal;
+  }
+}

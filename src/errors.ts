@@ -1,0 +1,68 @@
+// Known errors: small classes with a stable exit code. Only cli/ turns them into process exits.
+
+/** Exit codes of the `straylight` command (documented in the README). */
+export const ExitCode = {
+  ok: 0,
+  /** an unexpected internal error (a bug): a stack trace is printed */
+  internal: 1,
+  /** the command line itself is wrong (unknown option, bad flag value) */
+  usage: 2,
+  /** the shot file or a file it names is invalid: file:line:col messages */
+  badInput: 3,
+  /** some frames could not be rendered or written; the others were */
+  framesFailed: 4,
+  /** the render was interrupted (SIGINT/SIGTERM); finished frames are kept */
+  interrupted: 130,
+} as const;
+export type ExitCode = (typeof ExitCode)[keyof typeof ExitCode];
+
+/** Where in a source file something is. line and col are 1-based. */
+export interface SourceLoc {
+  file: string;
+  line: number;
+  col: number;
+}
+
+/** One problem found in a user's file. */
+export interface Diagnostic {
+  loc: SourceLoc;
+  /** key path inside the document, e.g. `lights[0].intensity[2].value` ('' for the document) */
+  path: string;
+  message: string;
+}
+
+export function formatDiagnostic(d: Diagnostic): string {
+  const where = `${d.loc.file}:${d.loc.line}:${d.loc.col}`;
+  return d.path ? `${where}: ${d.path}: ${d.message}` : `${where}: ${d.message}`;
+}
+
+/** Base of every error the program expects and reports without a stack. */
+export class StraylightError extends Error {
+  constructor(
+    message: string,
+    readonly exitCode: ExitCode,
+  ) {
+    super(message);
+    this.name = new.target.name;
+  }
+}
+
+/** An invalid shot (or track, or matte): every problem found, in file order. */
+export class ShotError extends StraylightError {
+  constructor(readonly diagnostics: Diagnostic[]) {
+    super(diagnostics.map(formatDiagnostic).join('\n'), ExitCode.badInput);
+  }
+}
+
+/** Bad input that is not located inside a file (a missing file, a bad --frames value). */
+export class InputError extends StraylightError {
+  constructor(message: string) {
+    super(message, ExitCode.badInput);
+  }
+}
+
+export class UsageError extends StraylightError {
+  constructor(message: string) {
+    super(message, ExitCode.usage);
+  }
+}

@@ -1,0 +1,29 @@
+// Reading a shot file from disk: the file-system edge of shot/resolve.
+
+import { readFileSync, statSync } from 'node:fs';
+import { InputError } from '../errors.js';
+import { resolveShot } from '../shot/resolve.js';
+import type { ResolvedShot } from '../shot/types.js';
+
+/** Shot and track files larger than this are refused before parsing. */
+export const MAX_INPUT_BYTES = 64 * 1024 * 1024;
+
+export function readTextFile(file: string): string {
+  const st = statSync(file);
+  if (!st.isFile()) throw Object.assign(new Error(`${file} is not a file`), { code: 'EISDIR' });
+  if (st.size > MAX_INPUT_BYTES) throw Object.assign(new Error(`${file} is larger than ${MAX_INPUT_BYTES} bytes`), { code: 'EFBIG' });
+  return readFileSync(file, 'utf8');
+}
+
+export function loadShot(file: string): ResolvedShot {
+  let text: string;
+  try {
+    text = readTextFile(file);
+  } catch (e) {
+    const err = e as NodeJS.ErrnoException;
+    const why = err.code === 'ENOENT' ? 'no such file' : err.code === 'EFBIG' ? err.message : (err.code ?? err.message);
+    throw new InputError(`${file}: cannot read the shot file: ${why}`);
+  }
+  // messages name the shot as the user wrote it
+  return resolveShot(text, file, { readText: readTextFile });
+}

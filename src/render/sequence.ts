@@ -1,0 +1,66 @@
+// The sequence renderer: frames in order, each encoded and written atomically; a failing frame is
+// reported and the others go on; an abort stops between frames and leaves only whole files.
+
+import { encodePng } from '../io/png.js';
+import { writeFileAtomic } from '../io/atomic-write.js';
+import { expandFramePath } from '../io/frame-path.js';
+import type { ResolvedOutput, ResolvedShot } from '../shot/types.js';
+import { renderFrame } from './render-frame.js';
+
+export interface FrameRange {
+  first: number;
+  last: number;
+}
+
+export interface SequenceOptions {
+  frames?: FrameRange;
+  /** overrides shot.output.template (absolute) */
+  template?: string;
+  signal?: AbortSignal;
+  onFrame?: (event: FrameEvent) => void;
+}
+
+export type FrameEvent =
+  | { kind: 'written'; frame: number; file: string; ms: number }
+  | { kind: 'failed'; frame: number; error: string };
+
+export interface SequenceResult {
+  written: number[];
+  failed: { frame: number; error: string }[];
+  interrupted: boolean;
+}
+
+export function encodeFrame(shot: ResolvedShot, frame: number, output: ResolvedOutput = shot.output): Buffer {
+  const img = renderFrame(shot, frame);
+  return encodePng(img, {
+    bitDepth: output.format === 'png8' ? 8 : 16,
+    transfer: output.transfer,
+    alpha: output.alpha,
+  });
+}
+
+export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions = {}): Promise<SequenceResult> {
+  const range = opts.frames ?? { first: shot.frame.first, last: shot.frame.last };
+  const template = opts.template ?? shot.output.template;
+  const result: SequenceResult = { written: [], failed: [], interrupted: false };
+  for (let f = range.first; f <= range.last; f++) {
+    // let signal handlers run between frames
+    await new Promise((resolve) => setImmediate(resolve));
+    if (opts.signal?.aborted) {
+      result.interrupted = true;
+      break;
+    }
+    const start = performance.now();
+    const file = expandFramePath(template, f);
+    try {
+      writeFileAtomic(file, encodeFrame(shot, f));
+      result.written.push(f);
+      opts.onFrame?.({ kind: 'written', frame: f, file, ms: performance.now() - start });
+    } catch (e) {
+      const error = (e as Error).message;
+      result.failed.push({ frame: f, error });
+      opts.onFrame?.({ kind: 'failed', frame: f, error });
+    }
+  }
+  return result;
+}

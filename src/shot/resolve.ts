@@ -1,0 +1,370 @@
+// Shot file (YAML text) -> ResolvedShot. Every problem is collected with file:line:col and key
+// path before anything fails; unknown keys are errors with a "did you mean" hint.
+
+import path from 'node:path';
+import { ShotError, type Diagnostic } from '../errors.js';
+import { blackbodyRgb } from '../colour/blackbody.js';
+import { luminance } from '../colour/srgb.js';
+import { parseFrameTemplate } from '../io/frame-path.js';
+import { LINEAR, parseEasing, type Easing } from '../timeline/easing.js';
+import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
+import type { Vec2 } from '../timeline/path.js';
+import { canDropFrame, timecodeToFrames } from '../timeline/timecode.js';
+import type { Key, PathShape } from '../timeline/track.js';
+import { Field, MapField, parseYamlSource } from './source.js';
+import { parseTrackCsv } from './track-csv.js';
+import type {
+  GlowSettings,
+  IntensityUnit,
+  ResolvedFrame,
+  ResolvedLight,
+  ResolvedOutput,
+  ResolvedShot,
+} from './types.js';
+
+/** Largest frame side accepted (px). */
+export const MAX_SIDE_PX = 16384;
+/** Largest number of frames in one shot. */
+export const MAX_FRAMES = 1_000_000;
+/** Positions further than this from the frame (px) are refused as typos. */
+export const MAX_COORD_PX = 1_000_000;
+
+export const DEFAULT_GLOW: GlowSettings = { fraction: 0.04, sizePx: 6, falloff: 3 };
+export const DEFAULT_RADIUS_PX = 4;
+
+/** What the resolver may read besides the shot itself (track CSVs); injected so shot/ does no I/O. */
+export interface ShotReader {
+  readText(absolutePath: string): string;
+}
+
+export function resolveShot(text: string, file: string, reader: ShotReader): ResolvedShot {
+  const absFile = path.resolve(file);
+  const { ctx, root } = parseYamlSource(text, file);
+  if (!root) throw new ShotError(ctx.diagnostics);
+  const r = new Resolver(ctx.diagnostics, path.dirname(absFile), path.dirname(file), reader);
+  const shot = r.shot(root, absFile);
+  if (ctx.diagnostics.length > 0 || !shot) {
+    throw new ShotError(sortDiagnostics(ctx.diagnostics));
+  }
+  return shot;
+}
+
+function sortDiagnostics(d: Diagnostic[]): Diagnostic[] {
+  return [...d].sort((a, b) =>
+    a.loc.file === b.loc.file ? a.loc.line - b.loc.line || a.loc.col - b.loc.col : a.loc.file < b.loc.file ? -1 : 1,
+  );
+}
+
+class Resolver {
+  constructor(
+    private readonly diagnostics: Diagnostic[],
+    private readonly dir: string,
+    /** the shot's folder as the user named it, for messages about files beside it */
+    private readonly shownDir: string,
+    private readonly reader: ShotReader,
+  ) {}
+
+  shot(root: Field, absFile: string): ResolvedShot | undefined {
+    const m = root.map('a mapping with version, frame, lights and output');
+    if (!m) return undefined;
+    const version = m.require('version', 'the shot-file format version, 1');
+    if (version && version.scalar !== 1) version.expected('version 1');
+    const frameField = m.require('frame', 'size, rate and frame range');
+    const frame = frameField ? this.frame(frameField) : undefined;
+    const seedField = m.get('seed');
+    const seed = seedField ? seedField.number({ integer: true, min: 0, max: 2 ** 32 - 1 }) : 0;
+    const lightsField = m.require('lights', 'a list of the lights in the shot');
+    const lights = lightsField ? this.lights(lightsField) : undefined;
+    const flareField = m.get('flare');
+    const glow = flareField ? this.flare(flareField) : DEFAULT_GLOW;
+    const outField = m.require('output', 'where and how frames are written');
+    const output = outField ? this.output(outField) : undefined;
+    m.finish();
+    if (!frame || !lights || !output || !glow || seed === undefined) return undefined;
+    return { version: 1, file: absFile, frame, seed, lights, glow, output };
+  }
+
+  frame(f: Field): ResolvedFrame | undefined {
+    const m = f.map();
+    if (!m) return undefined;
+    const width = m.require('width', 'frame width in pixels')?.number({ integer: true, min: 1, max: MAX_SIDE_PX });
+    const height = m.require('height', 'frame height in pixels')?.number({ integer: true, min: 1, max: MAX_SIDE_PX });
+    const pa = m.get('pixel_aspect');
+    const pixelAspect = pa ? pa.number({ min: 0.1, max: 10 }) : 1;
+    const rateField = m.require('rate', 'frames per second');
+    let rate: FrameRate | undefined;
+    if (rateField) {
+      const r = parseFrameRate(rateField.scalar);
+      if (typeof r === 'string') rateField.expected(r);
+      else rate = r;
+    }
+    const firstField = m.require('first', 'number of the first frame');
+    const first = firstField?.number({ integer: true, min: -1e9, max: 1e9 });
+    const lastField = m.require('last', 'number of the last frame');
+    const last = lastField?.number({ integer: true, min: -1e9, max: 1e9 });
+    if (first !== undefined && last !== undefined) {
+      if (last < first) lastField!.error(`expected a last frame at or after the first (${first}), found ${last}`);
+      else if (last - first + 1 > MAX_FRAMES) lastField!.error(`the range holds ${last - first + 1} frames; at most ${MAX_FRAMES}`);
+    }
+    const centreField = m.get('optical_centre');
+    const centre = centreField ? (centreField.numbers(2, { min: -MAX_COORD_PX, max: MAX_COORD_PX }) as Vec2 | undefined) : undefined;
+    let dropFrame = rate ? canDropFrame(rate) : false;
+    const dfField = m.get('drop_frame');
+    if (dfField) {
+      if (typeof dfField.scalar !== 'boolean') dfField.expected('true or false');
+      else if (dfField.scalar && rate && !canDropFrame(rate)) dfField.error(`drop-frame timecode exists only at 30000/1001 and 60000/1001 fps`);
+      else dropFrame = dfField.scalar;
+    }
+    let timecodeStart = first;
+    const tcField = m.get('timecode');
+    if (tcField && rate) {
+      const s = tcField.string('a timecode HH:MM:SS:FF');
+      if (s !== undefined) {
+        const n = timecodeToFrames(s, rate, dropFrame);
+        if (typeof n === 'string') tcField.error(n);
+        else timecodeStart = n;
+      }
+    }
+    m.finish();
+    if (width === undefined || height === undefined || pixelAspect === undefined || !rate || first === undefined || last === undefined || timecodeStart === undefined) return undefined;
+    if (centreField && !centre) return undefined;
+    return {
+      widthPx: width,
+      heightPx: height,
+      pixelAspect,
+      rate,
+      first,
+      last,
+      opticalCentre: centre ?? [width / 2, height / 2],
+      timecodeStartFrames: timecodeStart,
+      dropFrame,
+    };
+  }
+
+  lights(f: Field): ResolvedLight[] | undefined {
+    const items = f.list('a list of lights');
+    if (!items) return undefined;
+    if (items.length === 0) return f.error('expected at least one light, found an empty list');
+    const names = new Set<string>();
+    const out = items.map((item) => {
+      const light = this.light(item);
+      if (light) {
+        if (names.has(light.name)) new MapField(item).get('name')!.error(`the name "${light.name}" is already used by another light`);
+        names.add(light.name);
+      }
+      return light;
+    });
+    return out.every((l) => l !== undefined) ? (out as ResolvedLight[]) : undefined;
+  }
+
+  light(f: Field): ResolvedLight | undefined {
+    const m = f.map('a light: a mapping with name, position and intensity');
+    if (!m) return undefined;
+    const name = m.require('name', "the light's name")?.string('a name');
+    const pathField = m.get('path');
+    const shape: PathShape | undefined = pathField ? pathField.oneOf(['linear', 'smooth'] as const) : 'smooth';
+    const unitField = m.get('intensity_unit');
+    const unit: IntensityUnit | undefined = unitField ? unitField.oneOf(['stops', 'linear'] as const) : 'stops';
+    const intensityRule = unit === 'linear' ? { min: 0, max: 1e12 } : { min: -40, max: 40 };
+
+    const posField = m.get('position');
+    const trackField = m.get('track');
+    let position: Key<Vec2>[] | undefined;
+    let trackIntensity: Key<number>[] | undefined;
+    let trackSource: Field | undefined;
+    if (posField && trackField) {
+      trackField.error('a light takes either "position" keys or a "track" file, not both');
+    } else if (posField) {
+      position = this.positionKeys(posField);
+    } else if (trackField) {
+      trackSource = trackField;
+      const t = this.track(trackField, unit ? intensityRule : undefined);
+      position = t?.position;
+      trackIntensity = t?.intensity;
+    } else {
+      m.reportMissing('position', '"position" (pixel position keys) or "track" (a frame,x,y CSV file)');
+    }
+
+    const intField = m.get('intensity');
+    let intensity: Key<number>[] | undefined;
+    if (intField) {
+      if (trackIntensity) intField.error(`intensity is given here and in the track file's intensity column; keep one`);
+      intensity = this.scalarKeys(intField, 'value', intensityRule);
+    } else if (trackIntensity) {
+      intensity = trackIntensity;
+    } else if (trackSource || posField) {
+      m.reportMissing('intensity', "stops over the frame's white, or a linear multiplier with intensity_unit: linear");
+    }
+
+    const colourField = m.get('colour');
+    const colour = colourField ? this.colour(colourField) : { rgb: [1, 1, 1] as [number, number, number], spec: { kelvin: 6504 } };
+    const radiusField = m.get('radius');
+    const radiusPx = radiusField ? radiusField.number({ min: 0, minExclusive: true, max: 10_000 }) : DEFAULT_RADIUS_PX;
+    m.finish();
+    if (!name || !shape || !unit || !position || !intensity || !colour || radiusPx === undefined) return undefined;
+    return {
+      name,
+      path: shape,
+      position,
+      intensityUnit: unit,
+      intensity,
+      colour: colour.rgb,
+      colourSpec: colour.spec,
+      radiusPx,
+    };
+  }
+
+  /** A constant [x, y] or a list of {frame, x, y, ease} keys. */
+  positionKeys(f: Field): Key<Vec2>[] | undefined {
+    const coord = { min: -MAX_COORD_PX, max: MAX_COORD_PX };
+    const what = 'a constant position [x, y] or a list of keys {frame, x, y, ease}';
+    const list = f.isSeq() ? f.list()! : undefined;
+    if (list && list.length > 0 && list.every((x) => !x.isMap())) {
+      if (list.length !== 2) return f.error(`expected ${what}, found a list of ${list.length} values`);
+      const v = f.numbers(2, coord);
+      return v ? [{ frame: 0, value: [v[0], v[1]], ease: LINEAR }] : undefined;
+    }
+    if (!list) return f.expected(what);
+    return this.keys(f, list, (m) => {
+      const x = m.require('x', 'horizontal position in pixels')?.number(coord);
+      const y = m.require('y', 'vertical position in pixels, down from the top')?.number(coord);
+      return x === undefined || y === undefined ? undefined : ([x, y] as Vec2);
+    });
+  }
+
+  /** A constant number or a list of {frame, <valueKey>, ease} keys. */
+  scalarKeys(f: Field, valueKey: string, rule: { min: number; max: number }): Key<number>[] | undefined {
+    if (f.isNumber()) {
+      const v = f.number(rule);
+      return v === undefined ? undefined : [{ frame: 0, value: v, ease: LINEAR }];
+    }
+    const list = f.isSeq() ? f.list()! : undefined;
+    if (!list) return f.expected(`a constant number or a list of keys {frame, ${valueKey}, ease}`);
+    return this.keys(f, list, (m) => m.require(valueKey, 'the value at this key')?.number(rule));
+  }
+
+  keys<V>(f: Field, list: Field[], value: (m: MapField) => V | undefined): Key<V>[] | undefined {
+    if (list.length === 0) return f.error('expected at least one key, found an empty list');
+    const keys: (Key<V> | undefined)[] = [];
+    let prevFrame: number | undefined;
+    for (const item of list) {
+      const m = item.map('a key: a mapping with frame and a value');
+      if (!m) {
+        keys.push(undefined);
+        continue;
+      }
+      const frameField = m.require('frame', 'the frame number of this key');
+      const frame = frameField?.number({ min: -1e9, max: 1e9 });
+      if (frame !== undefined && prevFrame !== undefined && frame <= prevFrame) {
+        frameField!.error(`expected keys in increasing frame order, found ${frame} after ${prevFrame}`);
+      }
+      if (frame !== undefined) prevFrame = frame;
+      const v = value(m);
+      const easeField = m.get('ease');
+      let ease: Easing | undefined = LINEAR;
+      if (easeField) {
+        const s = easeField.string('an easing word');
+        const e = s === undefined ? undefined : parseEasing(s);
+        if (typeof e === 'string') ease = easeField.error(`${e}, found ${easeField.describe()}`);
+        else ease = e;
+      }
+      m.finish();
+      keys.push(frame === undefined || v === undefined || !ease ? undefined : { frame, value: v, ease });
+    }
+    return keys.every((k) => k !== undefined) ? (keys as Key<V>[]) : undefined;
+  }
+
+  track(f: Field, intensityRule: { min: number; max: number } | undefined): { position: Key<Vec2>[]; intensity?: Key<number>[] } | undefined {
+    const rel = f.string('a path to a frame,x,y[,intensity] CSV file');
+    if (rel === undefined) return undefined;
+    const abs = path.resolve(this.dir, rel);
+    let text: string;
+    try {
+      text = this.reader.readText(abs);
+    } catch (e) {
+      return f.error(`cannot read track file ${abs}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+    }
+    const shown = path.isAbsolute(rel) ? rel : path.join(this.shownDir, rel);
+    const csv = parseTrackCsv(text, shown, this.diagnostics);
+    if (!csv) return undefined;
+    const position = csv.rows.map((r) => ({ frame: r.frame, value: [r.x, r.y] as Vec2, ease: LINEAR }));
+    if (!csv.hasIntensity || !intensityRule) return { position };
+    const bad = csv.rows.find((r) => r.intensity! < intensityRule.min || r.intensity! > intensityRule.max);
+    if (bad) return f.error(`track intensity ${bad.intensity} at frame ${bad.frame} is outside ${intensityRule.min} to ${intensityRule.max}`);
+    return { position, intensity: csv.rows.map((r) => ({ frame: r.frame, value: r.intensity!, ease: LINEAR })) };
+  }
+
+  colour(f: Field): { rgb: [number, number, number]; spec: ResolvedLight['colourSpec'] } | undefined {
+    const m = f.map('{kelvin: K} or {rgb: [r, g, b]}');
+    if (!m) return undefined;
+    const k = m.get('kelvin');
+    const rgbField = m.get('rgb');
+    m.finish();
+    if (k && rgbField) return f.error('give either kelvin or rgb, not both');
+    if (k) {
+      const kelvin = k.number({ min: 1000, max: 40000 });
+      return kelvin === undefined ? undefined : { rgb: blackbodyRgb(kelvin), spec: { kelvin } };
+    }
+    if (rgbField) {
+      const rgb = rgbField.numbers(3, { min: 0, max: 1e6 }) as [number, number, number] | undefined;
+      if (!rgb) return undefined;
+      const lum = luminance(...rgb);
+      if (lum <= 0) return rgbField.error('expected a colour with some luminance, found black');
+      return { rgb: [rgb[0] / lum, rgb[1] / lum, rgb[2] / lum], spec: { rgb } };
+    }
+    return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
+  }
+
+  flare(f: Field): GlowSettings | undefined {
+    const m = f.map();
+    if (!m) return undefined;
+    const g = m.get('glow');
+    m.finish();
+    if (!g) return DEFAULT_GLOW;
+    const gm = g.map();
+    if (!gm) return undefined;
+    const get = (key: string, rule: Parameters<Field['number']>[0], dflt: number) => {
+      const x = gm.get(key);
+      return x ? x.number(rule) : dflt;
+    };
+    const fraction = get('fraction', { min: 0, max: 1 }, DEFAULT_GLOW.fraction);
+    const sizePx = get('size', { min: 0.5, max: 100_000 }, DEFAULT_GLOW.sizePx);
+    const falloff = get('falloff', { min: 2, minExclusive: true, max: 8 }, DEFAULT_GLOW.falloff);
+    gm.finish();
+    if (fraction === undefined || sizePx === undefined || falloff === undefined) return undefined;
+    return { fraction, sizePx, falloff };
+  }
+
+  output(f: Field): ResolvedOutput | undefined {
+    const m = f.map();
+    if (!m) return undefined;
+    const pathField = m.require('path', 'a frame-path template such as render/shot.####.png');
+    const formatField = m.get('format');
+    const format = formatField ? formatField.oneOf(['png16', 'png8'] as const) : 'png16';
+    const tf = m.get('transfer');
+    const transfer = tf ? tf.oneOf(['srgb', 'linear'] as const) : 'srgb';
+    const af = m.get('alpha');
+    const alpha = af ? af.oneOf(['none', 'premultiplied'] as const) : 'none';
+    m.finish();
+    const rel = pathField?.string('a frame-path template such as render/shot.####.png');
+    let template: string | undefined;
+    if (rel !== undefined) {
+      const problem = checkOutputTemplate(rel, format ?? 'png16');
+      if (problem) pathField!.error(problem);
+      else template = path.resolve(this.dir, rel);
+    }
+    if (!template || !format || !transfer || !alpha) return undefined;
+    return { template, format, transfer, alpha };
+  }
+}
+
+/** A problem with an output template for a format, or undefined when it is fine. */
+export function checkOutputTemplate(template: string, format: string): string | undefined {
+  const t = parseFrameTemplate(template);
+  if (typeof t === 'string') return t;
+  if (/[#%]/.test(path.dirname(template))) return 'put the frame-number placeholder in the file name, not a folder';
+  const ext = path.extname(template).toLowerCase();
+  const wanted = format.startsWith('png') ? '.png' : `.${format}`;
+  if (ext !== wanted) return `the file name must end in ${wanted} for format ${format}, found "${ext || 'no extension'}"`;
+  return undefined;
+}

@@ -1,0 +1,69 @@
+// The resolved shot: every default applied, units normalised, paths absolute. The rest of the
+// program sees only this form. Plain data: it crosses to worker threads by structured clone.
+
+import type { FrameRate } from '../timeline/frame-rate.js';
+import type { Key, PathShape } from '../timeline/track.js';
+import type { Vec2 } from '../timeline/path.js';
+
+export type OutputFormat = 'png16' | 'png8';
+export type Transfer = 'srgb' | 'linear';
+export type AlphaMode = 'none' | 'premultiplied';
+export type IntensityUnit = 'stops' | 'linear';
+
+export interface ResolvedFrame {
+  widthPx: number;
+  heightPx: number;
+  /** width of a pixel over its height (2 for a 2x anamorphic squeeze stored unsqueezed) */
+  pixelAspect: number;
+  rate: FrameRate;
+  first: number;
+  last: number;
+  /** optical centre in pixels */
+  opticalCentre: Vec2;
+  /** timecode of the first frame, as a frame count from 00:00:00:00 */
+  timecodeStartFrames: number;
+  dropFrame: boolean;
+}
+
+export interface ResolvedLight {
+  name: string;
+  path: PathShape;
+  /** position keys in pixels */
+  position: Key<Vec2>[];
+  intensityUnit: IntensityUnit;
+  /** intensity keys in intensityUnit (stops are interpolated in stops: fades are exponential) */
+  intensity: Key<number>[];
+  /** linear Rec.709 RGB with unit luminance */
+  colour: [number, number, number];
+  /** where the colour came from, for reports */
+  colourSpec: { kelvin: number } | { rgb: [number, number, number] };
+  radiusPx: number;
+}
+
+export interface GlowSettings {
+  /** glow energy as a fraction of the light's flux */
+  fraction: number;
+  /** core scale of the glow's profile, in pixels (frame height units) */
+  sizePx: number;
+  /** power-law exponent of the far tail: the glow falls as distance^-falloff */
+  falloff: number;
+}
+
+export interface ResolvedOutput {
+  /** absolute path template with a frame placeholder (#### or %04d) */
+  template: string;
+  format: OutputFormat;
+  transfer: Transfer;
+  alpha: AlphaMode;
+}
+
+export interface ResolvedShot {
+  version: 1;
+  /** absolute path of the shot file */
+  file: string;
+  frame: ResolvedFrame;
+  seed: number;
+  lights: ResolvedLight[];
+  glow: GlowSettings;
+  output: ResolvedOutput;
+}

@@ -1,0 +1,108 @@
+// The CLI driven in-process: exit codes, messages, and stdout kept for results only.
+
+import { existsSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { decode } from 'fast-png';
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { run } from '../../src/cli/run.js';
+import { ExitCode } from '../../src/errors.js';
+import { MINIMAL_SHOT, tempDir } from '../helpers.js';
+
+async function cli(args: string[]) {
+  let stdout = '';
+  let stderr = '';
+  const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
+  return { code, stdout, stderr };
+}
+
+function shotFile(text = MINIMAL_SHOT): string {
+  const dir = tempDir();
+  const f = path.join(dir, 'shot.yaml');
+  writeFileSync(f, text);
+  return f;
+}
+
+describe('straylight CLI', () => {
+  it('check prints the summary on stdout, with the SMPTE timecode range', async () => {
+    const f = shotFile(MINIMAL_SHOT.replace('rate: 24', 'rate: 25\n  timecode: "10:00:00:00"'));
+    const r = await cli(['check', f]);
+    expect(r.code).toBe(ExitCode.ok);
+    expect(r.stderr).toBe('');
+    expect(r.stdout).toContain('range     1-3 (3 frames, 0.120 s)');
+    expect(r.stdout).toContain('timecode  10:00:00:00 - 10:00:00:02');
+    expect(r.stdout).toContain('light     sun: 6504 K, radius 4 px');
+  });
+
+  it('a bad shot exits 3 with file:line:col messages and a count on stderr', async () => {
+    const f = shotFile(MINIMAL_SHOT.replace('height: 48', 'height: -2'));
+    const r = await cli(['render', f]);
+    expect(r.code).toBe(ExitCode.badInput);
+    expect(r.stdout).toBe('');
+    expect(r.stderr).toBe(`${f}:4:11: frame.height: expected a whole number from 1 to 16384, found -2\nstraylight: 1 problem found; nothing was rendered\n`);
+    expect(existsSync(path.join(path.dirname(f), 'out'))).toBe(false);
+  });
+
+  it('a missing shot file exits 3 with one line', async () => {
+    const r = await cli(['check', '/nonexistent/shot.yaml']);
+    expect(r.code).toBe(ExitCode.badInput);
+    expect(r.stderr).toBe('/nonexistent/shot.yaml: cannot read the shot file: no such file\n');
+  });
+
+  it('an unknown option exits 2', async () => {
+    const r = await cli(['render', shotFile(), '--fast']);
+    expect(r.code).toBe(ExitCode.usage);
+    expect(r.stderr).toContain("error: unknown option '--fast'");
+  });
+
+  it('--frames outside the shot exits 2 and names the range', async () => {
+    const r = await cli(['render', shotFile(), '--frames', '2-9']);
+    expect(r.code).toBe(ExitCode.usage);
+    expect(r.stderr).toBe("--frames: 2-9 lies outside the shot's range 1-3\n");
+  });
+
+  it('--jobs must be a positive whole number', async () => {
+    const r = await cli(['render', shotFile(), '--jobs', '0']);
+    expect(r.code).toBe(ExitCode.usage);
+    expect(r.stderr).toContain('--jobs: expected a whole number of at least 1, found "0"');
+  });
+
+  it('render --quiet writes the frames and prints nothing', async () => {
+    const f = shotFile();
+    const r = await cli(['render', f, '--quiet']);
+    expect(r).toEqual({ code: 0, stdout: '', stderr: '' });
+    for (const n of ['0001', '0002', '0003']) expect(existsSync(path.join(path.dirname(f), 'out', `f.${n}.png`))).toBe(true);
+  });
+
+  it('render reports progress and a summary on stderr, nothing on stdout', async () => {
+    const f = shotFile();
+    const r = await cli(['render', f, '--frames', '2-3']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe('');
+    expect(r.stderr).toMatch(/render: 2\/2 frames, [\d.]+ fps, ETA 0s\n/);
+    expect(r.stderr).toMatch(/rendered 2 frames to .*f\.####\.png in [\d.]+ s\n$/);
+  });
+
+  it('--out rejects a template without a frame number', async () => {
+    const r = await cli(['render', shotFile(), '--out', 'x.png']);
+    expect(r.code).toBe(ExitCode.usage);
+    expect(r.stderr).toBe('--out: the path needs a frame-number placeholder: #### or %04d\n');
+  });
+
+  it('still writes one frame of the shot\'s size', async () => {
+    const f = shotFile();
+    const out = path.join(path.dirname(f), 'still.png');
+    const r = await cli(['still', f, '--frame', '2', '--out', out]);
+    expect(r).toEqual({ code: 0, stdout: '', stderr: '' });
+    const png = decode(readFileSync(out));
+    expect([png.width, png.height, png.depth]).toEqual([64, 48, 16]);
+  });
+
+  it('--help exits 0 and lists the commands', async () => {
+    const r = await cli(['--help']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/render \[options\] <shot>/);
+    expect(r.stdout).toMatch(/check <shot>/);
+    expect(r.stdout).toMatch(/still \[options\] <shot>/);
+  });
+});

@@ -1,0 +1,39 @@
+// Shared test helpers: temporary folders and a minimal valid shot.
+
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { afterEach } from 'vitest';
+
+const made: string[] = [];
+
+/** A fresh temporary folder, removed after the test. */
+export function tempDir(): string {
+  const d = mkdtempSync(path.join(tmpdir(), 'straylight-test-'));
+  made.push(d);
+  return d;
+}
+
+afterEach(() => {
+  while (made.length) rmSync(made.pop()!, { recursive: true, force: true });
+});
+
+export function writeFiles(dir: string, files: Record<string, string>): void {
+  for (const [name, text] of Object.entries(files)) writeFileSync(path.join(dir, name), text);
+}
+
+/** A small valid shot; `extra` lines are spliced in where noted by the caller. */
+export const MINIMAL_SHOT = `version: 1
+frame:
+  width: 64
+  height: 48
+  rate: 24
+  first: 1
+  last: 3
+lights:
+  - name: sun
+    position: [32, 24]
+    intensity: 0
+output:
+  path: out/f.####.png
+`;
