@@ -61,6 +61,13 @@ export class InputError extends StraylightError {
   }
 }
 
+/** The output cannot be written at all (a folder that cannot be made); nothing was rendered. */
+export class OutputError extends StraylightError {
+  constructor(message: string) {
+    super(message, ExitCode.framesFailed);
+  }
+}
+
 export class UsageError extends StraylightError {
   constructor(message: string) {
     super(message, ExitCode.usage);

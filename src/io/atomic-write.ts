@@ -1,8 +1,9 @@
 // Atomic file writes: write a temporary file beside the target, flush it, rename it over the
 // target. A reader (or a crash) never sees a half-written file under a final frame name.
 
-import { closeSync, fsyncSync, mkdirSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
+import { closeSync, fsyncSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
 import path from 'node:path';
+import { ensureDir } from './ensure-dir.js';
 
 let counter = 0;
 
@@ -13,7 +14,7 @@ export function tempPathFor(target: string): string {
 }
 
 export function writeFileAtomic(target: string, data: Uint8Array): void {
-  mkdirSync(path.dirname(target), { recursive: true });
+  ensureDir(path.dirname(target));
   const tmp = tempPathFor(target);
   let fd: number | undefined;
   try {

@@ -24,6 +24,9 @@ export function loadShot(file: string): ResolvedShot {
     const why = err.code === 'ENOENT' ? 'no such file' : err.code === 'EFBIG' ? err.message : (err.code ?? err.message);
     throw new InputError(`${file}: cannot read the shot file: ${why}`);
   }
+  if (text.includes('\u0000') || text.includes('\ufffd')) {
+    throw new InputError(`${file}: not a text file (a YAML shot file was expected)`);
+  }
   // messages name the shot as the user wrote it
   return resolveShot(text, file, { readText: readTextFile });
 }

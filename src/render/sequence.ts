@@ -2,7 +2,10 @@
 // reported and the others go on; an abort stops between frames and leaves only whole files.
 
 import { encodePng } from '../io/png.js';
+import path from 'node:path';
+import { OutputError } from '../errors.js';
 import { writeFileAtomic } from '../io/atomic-write.js';
+import { ensureDir } from '../io/ensure-dir.js';
 import { expandFramePath } from '../io/frame-path.js';
 import type { ResolvedOutput, ResolvedShot } from '../shot/types.js';
 import { renderFrame } from './render-frame.js';
@@ -43,6 +46,13 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
   const range = opts.frames ?? { first: shot.frame.first, last: shot.frame.last };
   const template = opts.template ?? shot.output.template;
   const result: SequenceResult = { written: [], failed: [], interrupted: false };
+  const folder = path.dirname(template);
+  try {
+    ensureDir(folder);
+  } catch (e) {
+    const err = e as NodeJS.ErrnoException;
+    throw new OutputError(`cannot create the output folder ${folder}: ${err.code ?? err.message}`);
+  }
   for (let f = range.first; f <= range.last; f++) {
     // let signal handlers run between frames
     await new Promise((resolve) => setImmediate(resolve));

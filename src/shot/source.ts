@@ -118,7 +118,7 @@ export class Field {
     if (isSeq(n)) return 'a list';
     if (isScalar(n)) {
       const v = n.value;
-      if (typeof v === 'string') return JSON.stringify(v);
+      if (typeof v === 'string') return JSON.stringify(v.length > 60 ? `${v.slice(0, 57)}...` : v);
       return String(v);
     }
     return 'an unsupported YAML value';

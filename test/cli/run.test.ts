@@ -98,6 +98,27 @@ describe('straylight CLI', () => {
     expect([png.width, png.height, png.depth]).toEqual([64, 48, 16]);
   });
 
+  it('an output folder that cannot be made exits 4 with one line, before rendering', async () => {
+    const f = shotFile();
+    const r = await cli(['render', f, '--out', '/proc/straylight-none/f.####.png']);
+    expect(r.code).toBe(ExitCode.framesFailed);
+    expect(r.stderr).toBe('cannot create the output folder /proc/straylight-none: ENOENT\n');
+  });
+
+  it('a binary file given as the shot exits 3 with one line', async () => {
+    const f = shotFile();
+    writeFileSync(f, Buffer.from([0x89, 0x50, 0x4e, 0x47, 0, 0, 0xff, 0xfe]));
+    const r = await cli(['check', f]);
+    expect(r.code).toBe(ExitCode.badInput);
+    expect(r.stderr).toBe(`${f}: not a text file (a YAML shot file was expected)\n`);
+  });
+
+  it('a long bad value is shortened in the message', async () => {
+    const f = shotFile(MINIMAL_SHOT.replace('rate: 24', `rate: ${'x'.repeat(500)}`));
+    const r = await cli(['check', f]);
+    expect(r.stderr.split('\n')[0]).toBe(`${f}:5:9: frame.rate: expected a frame rate such as 24, 25, 30, 23.976 or "24000/1001", found "${'x'.repeat(57)}..."`);
+  });
+
   it('--help exits 0 and lists the commands', async () => {
     const r = await cli(['--help']);
     expect(r.code).toBe(0);
