@@ -1,0 +1,183 @@
+// Real (sequential) ray tracing through spherical surfaces along a light path: Snell's law in
+// vector form, mirror reflection, the vertex-side intersection of each sphere.
+//
+// Rays are not killed at the barrel: each ray records the largest ratio of its height to a
+// surface's clear semi-diameter ("vignetting"), and where it crosses the stop plane, so the
+// renderer can cut both edges smoothly by interpolating them across a triangle. A ray is lost only
+// where geometry fails (it misses a sphere, or is totally internally reflected).
+
+import { reflectance } from './coating.js';
+import { indexAfter, indexBefore, vertexZ, type LensModel, type LightPath } from './lens.js';
+
+/** Everything about one path at one wavelength that does not depend on the ray. */
+export interface PathPlan {
+  n: number;
+  z: Float64Array;
+  radius: Float64Array;
+  semi: Float64Array;
+  /** index on the side the ray arrives from, and on the other side */
+  nIn: Float64Array;
+  nOut: Float64Array;
+  reflect: Uint8Array;
+  stop: Uint8Array;
+  /** for refractions: normal-incidence transmission 1 - R (coating included) */
+  transmit: Float64Array;
+  /** for reflections: coating layers in the order the ray meets them */
+  layers: { index: number; thicknessNm: number }[][];
+  sensorZ: number;
+  nm: number;
+  stopRadiusMm: number;
+}
+
+export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiusMm: number): PathPlan {
+  const n = path.length;
+  const zs = vertexZ(lens);
+  const plan: PathPlan = {
+    n,
+    z: new Float64Array(n),
+    radius: new Float64Array(n),
+    semi: new Float64Array(n),
+    nIn: new Float64Array(n),
+    nOut: new Float64Array(n),
+    reflect: new Uint8Array(n),
+    stop: new Uint8Array(n),
+    transmit: new Float64Array(n),
+    layers: [],
+    sensorZ: zs[zs.length - 1],
+    nm,
+    stopRadiusMm,
+  };
+  path.forEach((ev, e) => {
+    const s = lens.surfaces[ev.surface];
+    const front = indexBefore(lens, ev.surface, nm);
+    const back = indexAfter(lens, ev.surface, nm);
+    plan.z[e] = zs[ev.surface];
+    plan.radius[e] = s.radiusMm;
+    plan.semi[e] = s.semiDiameterMm;
+    plan.nIn[e] = ev.dir === 1 ? front : back;
+    plan.nOut[e] = ev.dir === 1 ? back : front;
+    plan.reflect[e] = ev.action === 'reflect' ? 1 : 0;
+    plan.stop[e] = s.stop ? 1 : 0;
+    const layers = ev.dir === 1 ? s.coating : [...s.coating].reverse();
+    plan.layers.push(layers);
+    plan.transmit[e] = s.stop ? 1 : 1 - reflectance(plan.nIn[e], plan.nOut[e], layers, nm, 1);
+  });
+  return plan;
+}
+
+/** The result of tracing one ray; reused between rays to avoid allocation. */
+export class RayHit {
+  ok = false;
+  /** position on the sensor plane, mm */
+  x = 0;
+  y = 0;
+  /** stop-plane positions over the stop radius, one per crossing */
+  stopU = new Float64Array(3);
+  stopV = new Float64Array(3);
+  stopCount = 0;
+  /** largest height / clear semi-diameter met along the path */
+  vignette = 0;
+  /** reflectances of the reflections times transmissions of the refractions */
+  throughput = 1;
+  /** direction cosines when it reached the sensor */
+  dx = 0;
+  dy = 0;
+  dz = 1;
+}
+
+/**
+ * Trace a ray from (ox, oy, oz) along the unit vector (dx, dy, dz) through the planned path to the
+ * sensor plane. Returns false if it is lost.
+ */
+export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, out: RayHit): boolean {
+  let px = ox;
+  let py = oy;
+  let pz = oz;
+  out.ok = false;
+  out.stopCount = 0;
+  out.vignette = 0;
+  out.throughput = 1;
+  for (let e = 0; e < plan.n; e++) {
+    const zv = plan.z[e];
+    const r = plan.radius[e];
+    // intersection with the surface
+    let t: number;
+    let nx = 0;
+    let ny = 0;
+    let nz = -1;
+    if (r === 0) {
+      if (Math.abs(dz) < 1e-12) return false;
+      t = (zv - pz) / dz;
+    } else {
+      const cz = zv + r;
+      const ocz = pz - cz;
+      const b = px * dx + py * dy + ocz * dz;
+      const c = px * px + py * py + ocz * ocz - r * r;
+      const disc = b * b - c;
+      if (disc < 0) return false;
+      const sq = Math.sqrt(disc);
+      // of the two crossings, keep the one on the vertex's side of the centre: (z - cz) has the sign of -r
+      const t1 = -b - sq;
+      const t2 = -b + sq;
+      const z1 = pz + t1 * dz - cz;
+      t = z1 * -r > 0 ? t1 : t2;
+      const zt = pz + t * dz - cz;
+      if (zt * -r <= 0) return false;
+      px += t * dx;
+      py += t * dy;
+      pz += t * dz;
+      nx = px / r;
+      ny = py / r;
+      nz = (pz - cz) / r;
+      t = 0;
+    }
+    if (t !== 0) {
+      px += t * dx;
+      py += t * dy;
+      pz += t * dz;
+    }
+    const h = Math.sqrt(px * px + py * py);
+    if (plan.stop[e]) {
+      if (out.stopCount < 3) {
+        out.stopU[out.stopCount] = px / plan.stopRadiusMm;
+        out.stopV[out.stopCount] = py / plan.stopRadiusMm;
+        out.stopCount++;
+      }
+      continue;
+    }
+    const v = h / plan.semi[e];
+    if (v > out.vignette) out.vignette = v;
+    // orient the normal against the ray
+    let cosi = -(nx * dx + ny * dy + nz * dz);
+    if (cosi < 0) {
+      nx = -nx;
+      ny = -ny;
+      nz = -nz;
+      cosi = -cosi;
+    }
+    if (plan.reflect[e]) {
+      out.throughput *= reflectance(plan.nIn[e], plan.nOut[e], plan.layers[e], plan.nm, cosi);
+      dx += 2 * cosi * nx;
+      dy += 2 * cosi * ny;
+      dz += 2 * cosi * nz;
+    } else {
+      const eta = plan.nIn[e] / plan.nOut[e];
+      const k = 1 - eta * eta * (1 - cosi * cosi);
+      if (k < 0) return false; // total internal reflection
+      const f = eta * cosi - Math.sqrt(k);
+      dx = eta * dx + f * nx;
+      dy = eta * dy + f * ny;
+      dz = eta * dz + f * nz;
+      out.throughput *= plan.transmit[e];
+    }
+  }
+  if (dz <= 1e-12) return false;
+  const t = (plan.sensorZ - pz) / dz;
+  out.x = px + t * dx;
+  out.y = py + t * dy;
+  out.dx = dx;
+  out.dy = dy;
+  out.dz = dz;
+  out.ok = true;
+  return true;
+}
