@@ -3,8 +3,10 @@
 //
 // Rays are not killed at the barrel: each ray records the largest ratio of its height to a
 // surface's clear semi-diameter ("vignetting"), and where it crosses the stop plane, so the
-// renderer can cut both edges smoothly by interpolating them across a triangle. A ray is lost only
-// where geometry fails (it misses a sphere, or is totally internally reflected).
+// renderer can cut both edges smoothly by interpolating them across a triangle. Where geometry
+// fails (a ray misses a sphere, or is totally internally reflected) the ray is not dropped either:
+// it is continued at grazing and records how far past the limit it went ("margin" < 0), so those
+// edges too come out smooth instead of snapping to the ray grid.
 
 import { reflectance } from './coating.js';
 import { indexAfter, indexBefore, vertexZ, type LensModel, type LightPath } from './lens.js';
@@ -20,7 +22,7 @@ export interface PathPlan {
   nOut: Float64Array;
   reflect: Uint8Array;
   stop: Uint8Array;
-  /** for refractions: normal-incidence transmission 1 - R (coating included) */
+  /** for refractions: normal-incidence transmission 1 - R (coating included) over the bare one */
   transmit: Float64Array;
   /** for reflections: coating layers in the order the ray meets them */
   layers: { index: number; thicknessNm: number }[][];
@@ -60,7 +62,9 @@ export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiu
     plan.stop[e] = s.stop ? 1 : 0;
     const layers = ev.dir === 1 ? s.coating : [...s.coating].reverse();
     plan.layers.push(layers);
-    plan.transmit[e] = s.stop ? 1 : 1 - reflectance(plan.nIn[e], plan.nOut[e], layers, nm, 1);
+    // the coating's gain in transmission at normal incidence; the angle enters through the bare
+    // Fresnel transmission at trace time (it falls to 0 at grazing incidence)
+    plan.transmit[e] = s.stop ? 1 : (1 - reflectance(plan.nIn[e], plan.nOut[e], layers, nm, 1)) / (1 - reflectance(plan.nIn[e], plan.nOut[e], [], nm, 1));
   });
   return plan;
 }
@@ -79,6 +83,8 @@ export class RayHit {
   vignette = 0;
   /** reflectances of the reflections times transmissions of the refractions */
   throughput = 1;
+  /** smallest geometric slack met (sphere discriminant / r^2, 1 - sin^2 of refraction); < 0 = lost */
+  margin = 1;
   /** direction cosines when it reached the sensor */
   dx = 0;
   dy = 0;
@@ -97,6 +103,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   out.stopCount = 0;
   out.vignette = 0;
   out.throughput = 1;
+  out.margin = 1;
   for (let e = 0; e < plan.n; e++) {
     const zv = plan.z[e];
     const r = plan.radius[e];
@@ -113,16 +120,16 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       const ocz = pz - cz;
       const b = px * dx + py * dy + ocz * dz;
       const c = px * px + py * py + ocz * ocz - r * r;
-      const disc = b * b - c;
-      if (disc < 0) return false;
+      let disc = b * b - c;
+      const slack = disc / (r * r);
+      if (slack < out.margin) out.margin = slack;
+      if (disc < 0) disc = 0; // continue at the tangent point; the margin says it missed
       const sq = Math.sqrt(disc);
       // of the two crossings, keep the one on the vertex's side of the centre: (z - cz) has the sign of -r
       const t1 = -b - sq;
       const t2 = -b + sq;
       const z1 = pz + t1 * dz - cz;
       t = z1 * -r > 0 ? t1 : t2;
-      const zt = pz + t * dz - cz;
-      if (zt * -r <= 0) return false;
       px += t * dx;
       py += t * dy;
       pz += t * dz;
@@ -162,16 +169,23 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       dz += 2 * cosi * nz;
     } else {
       const eta = plan.nIn[e] / plan.nOut[e];
-      const k = 1 - eta * eta * (1 - cosi * cosi);
-      if (k < 0) return false; // total internal reflection
-      const f = eta * cosi - Math.sqrt(k);
+      let k = 1 - eta * eta * (1 - cosi * cosi);
+      if (k < out.margin) out.margin = k;
+      if (k < 0) k = 0; // total internal reflection: continue at grazing; the margin says it is lost
+      const cost = Math.sqrt(k);
+      const f = eta * cosi - cost;
       dx = eta * dx + f * nx;
       dy = eta * dy + f * ny;
       dz = eta * dz + f * nz;
-      out.throughput *= plan.transmit[e];
+      // bare Fresnel transmission at this angle (Smith eq. 11.1), times the coating's gain
+      const n1 = plan.nIn[e];
+      const n2 = plan.nOut[e];
+      const rs = (n1 * cosi - n2 * cost) / (n1 * cosi + n2 * cost);
+      const rp = (n2 * cosi - n1 * cost) / (n2 * cosi + n1 * cost);
+      out.throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
     }
   }
-  if (dz <= 1e-12) return false;
+  if (dz <= 1e-12 || !Number.isFinite(px + py + dx + dy)) return false;
   const t = (plan.sensorZ - pz) / dz;
   out.x = px + t * dx;
   out.y = py + t * dy;

@@ -1,0 +1,491 @@
+// Lens ghosts, ray traced (Hullin, Eisemann, Seidel & Lee, "Physically-based real-time lens flare
+// rendering", ACM TOG 30(4), 2011): for each ghost path a regular grid of parallel rays over the
+// part of the entrance plane that can reach the iris is traced at several wavelengths; each grid
+// cell becomes two triangles on the sensor whose irradiance is the cell's entrance area over its
+// sensor area. Per pixel, the stop-plane position and the barrel-vignetting ratio, interpolated
+// across the triangle, cut the iris polygon and the lens-barrel clipping with anti-aliased edges.
+//
+// Cost control: ghosts whose paraxial peak cannot reach a visible value are skipped; large ghosts
+// (smooth inside) are drawn into half- or quarter-resolution buffers, upsampled once per call.
+
+import { irisShape, type IrisShape } from '../optics/iris.js';
+import type { GhostQuality, LensSystem, RankedGhost } from '../optics/ghost-system.js';
+import { RayHit, traceRay, type PathPlan } from '../optics/trace.js';
+import type { FloatImage } from '../raster/image.js';
+
+export interface GhostView {
+  widthPx: number;
+  heightPx: number;
+  pixelAspect: number;
+  opticalCentre: readonly [number, number];
+}
+
+export interface GhostLight {
+  xPx: number;
+  yPx: number;
+  /** RGB flux of the light's image (disk radiance x area), display units */
+  flux: readonly [number, number, number];
+}
+
+export interface GhostFrameSettings {
+  fNumber: number;
+  gain: number;
+  quality: GhostQuality;
+}
+
+export interface GhostStats {
+  drawn: number;
+  skipped: number;
+}
+
+/** Pixel values below this are not worth drawing (a quarter of one 16-bit code). */
+const INVISIBLE = 1 / (4 * 65535);
+/** Sensor cell areas are clamped here (px^2) where the grid folds into a caustic. */
+const MIN_CELL_AREA_PX = 0.02;
+/** Ghost sizes (largest side, px) above which it is drawn at half and at quarter resolution. */
+const HALF_RES_PX = 240;
+const QUARTER_RES_PX = 600;
+
+/** Pixels per sensor millimetre, horizontally and vertically. */
+export function pxPerMm(system: LensSystem, view: GhostView): [number, number] {
+  const sx = view.widthPx / system.lens.sensorWidthMm;
+  return [sx, sx * view.pixelAspect];
+}
+
+/** Incoming ray slopes for a light seen at (xPx, yPx): its paraxial image lands there. */
+export function lightSlopes(system: LensSystem, view: GhostView, xPx: number, yPx: number): [number, number] {
+  const [sx, sy] = pxPerMm(system, view);
+  const f = system.focalLengthMm;
+  // the image is inverted on the sensor and shown upright: display offset D (mm) needs slope -D/f;
+  // an anamorphic front squeezes the horizontal field angle by its squeeze factor
+  return [-((xPx - view.opticalCentre[0]) / sx / f) / system.lens.squeeze, -((yPx - view.opticalCentre[1]) / sy / f)];
+}
+
+/** RGB accumulation buffer at 1/scale resolution. */
+interface Layer {
+  scale: number;
+  w: number;
+  h: number;
+  data: Float32Array;
+  used: boolean;
+}
+
+export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, light: GhostLight, settings: GhostFrameSettings, stats?: GhostStats): void {
+  const lum = 0.2126 * light.flux[0] + 0.7152 * light.flux[1] + 0.0722 * light.flux[2];
+  if (lum <= 0 || settings.gain <= 0) return;
+  const f = system.focalLengthMm;
+  const epRadius = f / (2 * settings.fNumber);
+  const stopRadius = epRadius * system.stopRatio;
+  const epArea = Math.PI * epRadius * epRadius;
+  const [sx, sy] = lightSlopes(system, view, light.xPx, light.yPx);
+  const [pxX, pxY] = pxPerMm(system, view);
+  const e0 = [light.flux[0] / epArea, light.flux[1] / epArea, light.flux[2] / epArea];
+  const mm2PerPx = 1 / (pxX * pxY);
+  const shape = irisShape(system.lens.iris);
+  const multiRes = settings.quality !== 'high';
+  const layers: Layer[] = [1, 2, 4].map((scale) => {
+    const w = Math.ceil(img.width / scale);
+    const h = Math.ceil(img.height / scale);
+    return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false };
+  });
+  const centre = Math.floor(system.samples.length / 2);
+  for (let g = 0; g < system.kept; g++) {
+    const ghost = system.ranked[g];
+    // paraxial peak estimate: skip what cannot reach a visible value
+    if ((lum / epArea) * ghost.strength * mm2PerPx * settings.gain < INVISIBLE) {
+      if (stats) stats.skipped++;
+      continue;
+    }
+    const grid = new GhostGrid(system, view, sx, sy, stopRadius, pxX, pxY, shape);
+    const box = grid.fitBox(ghost, ghost.plans[centre]);
+    if (!box) {
+      if (stats) stats.skipped++;
+      continue;
+    }
+    let layer = layers[0];
+    if (multiRes) {
+      const size = grid.passingSizePx();
+      if (size > QUARTER_RES_PX) layer = layers[2];
+      else if (size > HALF_RES_PX) layer = layers[1];
+    }
+    for (let w = 0; w < system.samples.length; w++) {
+      const weight = system.samples[w].rgb;
+      const k = settings.gain / view.pixelAspect;
+      grid.trace(ghost.plans[w], box);
+      grid.draw(img, layer, [e0[0] * weight[0] * k, e0[1] * weight[1] * k, e0[2] * weight[2] * k]);
+    }
+    if (stats) stats.drawn++;
+  }
+  for (const layer of layers) if (layer.scale > 1 && layer.used) upsampleAdd(img, layer);
+}
+
+interface Box {
+  x0: number;
+  y0: number;
+  x1: number;
+  y1: number;
+}
+
+const hit = new RayHit();
+
+/** The traced grid of one ghost at one wavelength, and its rasterisation. */
+class GhostGrid {
+  readonly n: number;
+  readonly side: number;
+  readonly vx: Float64Array;
+  readonly vy: Float64Array;
+  readonly valid: Uint8Array;
+  readonly energy: Float64Array;
+  readonly thr: Float64Array;
+  readonly vig: Float64Array;
+  readonly geo: Float64Array;
+  readonly su: Float64Array;
+  readonly sv: Float64Array;
+  crossings = 0;
+  private readonly dx: number;
+  private readonly dy: number;
+  private readonly dz: number;
+  private readonly launch: number;
+
+  constructor(
+    readonly system: LensSystem,
+    readonly view: GhostView,
+    sx: number,
+    sy: number,
+    readonly stopRadius: number,
+    readonly pxX: number,
+    readonly pxY: number,
+    readonly shape: IrisShape,
+  ) {
+    this.n = system.grid;
+    this.side = this.n + 1;
+    const m = this.side * this.side;
+    this.vx = new Float64Array(m);
+    this.vy = new Float64Array(m);
+    this.valid = new Uint8Array(m);
+    this.energy = new Float64Array(m);
+    this.thr = new Float64Array(m);
+    this.vig = new Float64Array(m);
+    this.geo = new Float64Array(m);
+    this.su = new Float64Array(m * 3);
+    this.sv = new Float64Array(m * 3);
+    const norm = 1 / Math.sqrt(1 + sx * sx + sy * sy);
+    this.dx = sx * norm;
+    this.dy = sy * norm;
+    this.dz = norm;
+    this.launch = system.lens.surfaces[0].semiDiameterMm + 10;
+  }
+
+  /** Whether vertex v's ray gets through the barrel and the iris (with a small margin). */
+  private passes(v: number, margin: number): boolean {
+    if (!this.valid[v] || this.vig[v] > 1 + margin || this.geo[v] < -margin) return false;
+    for (let c = 0; c < this.crossings; c++) {
+      const u = this.su[v * 3 + c];
+      const w = this.sv[v * 3 + c];
+      if (u * u + w * w > (1 + margin) ** 2) return false;
+    }
+    return true;
+  }
+
+  /**
+   * The entrance-plane box to trace: start from the paraxial pupil of the ghost path (for each
+   * stop crossing |A y + B u| <= stop radius), and widen it while rays on its border still pass.
+   */
+  fitBox(ghost: RankedGhost, plan: PathPlan): Box | undefined {
+    // headroom past the front element: on a curved front surface the barrel's cut does not sit
+    // exactly at the semi-diameter on the vertex plane, and it must fall inside the grid
+    const front = this.system.lens.surfaces[0].semiDiameterMm * 1.25;
+    const sx = this.dx / this.dz;
+    const sy = this.dy / this.dz;
+    let box: Box = { x0: -front, y0: -front, x1: front, y1: front };
+    for (const { a, b } of ghost.stopCrossings) {
+      if (Math.abs(a) < 1e-9) continue;
+      const half = Math.abs(this.stopRadius / a) * 1.15;
+      const cx = (-b * sx) / a;
+      const cy = (-b * sy) / a;
+      box = { x0: Math.max(box.x0, cx - half), x1: Math.min(box.x1, cx + half), y0: Math.max(box.y0, cy - half), y1: Math.min(box.y1, cy + half) };
+    }
+    if (box.x1 <= box.x0 || box.y1 <= box.y0) return undefined;
+    for (let round = 0; round < 4; round++) {
+      this.trace(plan, box);
+      const n = this.n;
+      const s = this.side;
+      let any = false;
+      const grow = { l: false, r: false, t: false, b: false };
+      for (let k = 0; k <= n; k++) {
+        if (this.passes(k, 0.05)) grow.t = true;
+        if (this.passes(n * s + k, 0.05)) grow.b = true;
+        if (this.passes(k * s, 0.05)) grow.l = true;
+        if (this.passes(k * s + n, 0.05)) grow.r = true;
+      }
+      for (let v = 0; v < s * s && !any; v++) any = this.passes(v, 0.05);
+      if (!any) return round === 0 ? undefined : box;
+      const w = box.x1 - box.x0;
+      const h = box.y1 - box.y0;
+      const next: Box = {
+        x0: grow.l ? Math.max(-front, box.x0 - 0.5 * w) : box.x0,
+        x1: grow.r ? Math.min(front, box.x1 + 0.5 * w) : box.x1,
+        y0: grow.t ? Math.max(-front, box.y0 - 0.5 * h) : box.y0,
+        y1: grow.b ? Math.min(front, box.y1 + 0.5 * h) : box.y1,
+      };
+      if (next.x0 === box.x0 && next.x1 === box.x1 && next.y0 === box.y0 && next.y1 === box.y1) break;
+      box = next;
+    }
+    // a little extra for the other wavelengths' chromatic shift
+    const mx = 0.04 * (box.x1 - box.x0);
+    const my = 0.04 * (box.y1 - box.y0);
+    return { x0: Math.max(-front, box.x0 - mx), x1: Math.min(front, box.x1 + mx), y0: Math.max(-front, box.y0 - my), y1: Math.min(front, box.y1 + my) };
+  }
+
+  /** Largest side (px) of the region whose rays pass, from the last trace. */
+  passingSizePx(): number {
+    let x0 = Infinity;
+    let x1 = -Infinity;
+    let y0 = Infinity;
+    let y1 = -Infinity;
+    for (let v = 0; v < this.side * this.side; v++) {
+      if (!this.passes(v, 0)) continue;
+      x0 = Math.min(x0, this.vx[v]);
+      x1 = Math.max(x1, this.vx[v]);
+      y0 = Math.min(y0, this.vy[v]);
+      y1 = Math.max(y1, this.vy[v]);
+    }
+    return Math.max(x1 - x0, y1 - y0, 0);
+  }
+
+  /** Trace the grid over the box and compute each vertex's irradiance. */
+  trace(plan: PathPlan, box: Box): void {
+    const { n, side, dx, dy, dz, launch, view } = this;
+    plan.stopRadiusMm = this.stopRadius;
+    const cw = (box.x1 - box.x0) / n;
+    const ch = (box.y1 - box.y0) / n;
+    for (let j = 0; j <= n; j++) {
+      for (let i = 0; i <= n; i++) {
+        const v = j * side + i;
+        const gx = box.x0 + i * cw;
+        const gy = box.y0 + j * ch;
+        const ok = traceRay(plan, gx - (launch * dx) / dz, gy - (launch * dy) / dz, -launch, dx, dy, dz, hit);
+        this.valid[v] = ok ? 1 : 0;
+        if (!ok) continue;
+        this.vx[v] = view.opticalCentre[0] - hit.x * this.pxX;
+        this.vy[v] = view.opticalCentre[1] - hit.y * this.pxY;
+        this.thr[v] = hit.throughput;
+        this.vig[v] = hit.vignette;
+        this.geo[v] = hit.margin;
+        this.crossings = hit.stopCount;
+        for (let c = 0; c < hit.stopCount; c++) {
+          this.su[v * 3 + c] = hit.stopU[c];
+          this.sv[v * 3 + c] = hit.stopV[c];
+        }
+      }
+    }
+    // anamorphic: the ghost is compressed horizontally about its own centre (see README)
+    const squeeze = this.system.lens.squeeze;
+    if (squeeze !== 1) {
+      let mx = 0;
+      let count = 0;
+      for (let v = 0; v < side * side; v++) {
+        if (this.valid[v] && this.vig[v] <= 1) {
+          mx += this.vx[v];
+          count++;
+        }
+      }
+      if (count > 0) {
+        mx /= count;
+        for (let v = 0; v < side * side; v++) if (this.valid[v]) this.vx[v] = mx + (this.vx[v] - mx) / squeeze;
+      }
+    }
+    // irradiance at each vertex: entrance area (foreshortened by cos theta) over sensor area,
+    // averaged over its cells; times the path's throughput
+    const entrance = cw * ch * dz;
+    const e = this.energy;
+    e.fill(0);
+    const counts = new Uint8Array(side * side);
+    const { vx, vy, valid } = this;
+    for (let j = 0; j < n; j++) {
+      for (let i = 0; i < n; i++) {
+        const a = j * side + i;
+        const b = a + 1;
+        const c = a + side + 1;
+        const d = a + side;
+        if (!(valid[a] && valid[b] && valid[c] && valid[d])) continue;
+        const area = 0.5 * Math.abs((vx[c] - vx[a]) * (vy[d] - vy[b]) - (vx[d] - vx[b]) * (vy[c] - vy[a]));
+        const ratio = entrance / Math.max(area, MIN_CELL_AREA_PX);
+        e[a] += ratio;
+        e[b] += ratio;
+        e[c] += ratio;
+        e[d] += ratio;
+        counts[a]++;
+        counts[b]++;
+        counts[c]++;
+        counts[d]++;
+      }
+    }
+    for (let v = 0; v < side * side; v++) if (counts[v]) e[v] = (e[v] / counts[v]) * this.thr[v];
+  }
+
+  draw(img: FloatImage, layer: Layer, scale: [number, number, number]): void {
+    const { n, side, valid, vig } = this;
+    layer.used = true;
+    for (let j = 0; j < n; j++) {
+      for (let i = 0; i < n; i++) {
+        const a = j * side + i;
+        const b = a + 1;
+        const c = a + side + 1;
+        const d = a + side;
+        if (!(valid[a] && valid[b] && valid[c] && valid[d])) continue;
+        // cells wholly outside the barrel, or lost, at every corner carry nothing
+        if (vig[a] > 1.2 && vig[b] > 1.2 && vig[c] > 1.2 && vig[d] > 1.2) continue;
+        const geo = this.geo;
+        if (geo[a] < -0.2 && geo[b] < -0.2 && geo[c] < -0.2 && geo[d] < -0.2) continue;
+        this.triangle(img, layer, a, b, c, scale);
+        this.triangle(img, layer, a, c, d, scale);
+      }
+    }
+  }
+
+  // per-triangle plane coefficients: value = p0 + ox gx + oy gy, coverage = 0.5 + value * inv
+  private readonly p0 = new Float64Array(64);
+  private readonly pgx = new Float64Array(64);
+  private readonly pgy = new Float64Array(64);
+  private readonly pinv = new Float64Array(64);
+
+  private triangle(img: FloatImage, layer: Layer, a: number, b: number, c: number, scale: [number, number, number]): void {
+    const s = layer.scale;
+    const x0 = this.vx[a] / s;
+    const y0 = this.vy[a] / s;
+    const x1 = this.vx[b] / s;
+    const y1 = this.vy[b] / s;
+    const x2 = this.vx[c] / s;
+    const y2 = this.vy[c] / s;
+    const area2 = (x1 - x0) * (y2 - y0) - (x2 - x0) * (y1 - y0);
+    if (Math.abs(area2) < 1e-12) return;
+    const minX = Math.max(0, Math.ceil(Math.min(x0, x1, x2) - 0.5));
+    const maxX = Math.min(layer.w - 1, Math.floor(Math.max(x0, x1, x2) - 0.5));
+    const minY = Math.max(0, Math.ceil(Math.min(y0, y1, y2) - 0.5));
+    const maxY = Math.min(layer.h - 1, Math.floor(Math.max(y0, y1, y2) - 0.5));
+    if (minX > maxX || minY > maxY) return;
+    const inv = 1 / area2;
+    const ex1 = (y2 - y0) * inv;
+    const ey1 = (y1 - y0) * inv;
+    const ex2 = (x1 - x0) * inv;
+    const ey2 = (x2 - x0) * inv;
+    // gradient of a value given at the three corners
+    const gx = (fa: number, fb: number, fc: number) => (fb - fa) * ex1 - (fc - fa) * ey1;
+    const gy = (fa: number, fb: number, fc: number) => (fc - fa) * ex2 - (fb - fa) * ey2;
+    const { p0, pgx, pgy, pinv } = this;
+    let planes = 0;
+    const addPlane = (va: number, vb: number, vc: number) => {
+      const px = gx(va, vb, vc);
+      const py = gy(va, vb, vc);
+      p0[planes] = va;
+      pgx[planes] = px;
+      pgy[planes] = py;
+      pinv[planes] = 1 / Math.max(1e-9, Math.hypot(px, py));
+      planes++;
+    };
+    // the barrel: 1 - vignetting ratio; the geometry: rays that missed a sphere or were totally
+    // reflected have a negative margin
+    addPlane(1 - this.vig[a], 1 - this.vig[b], 1 - this.vig[c]);
+    if (this.geo[a] < 0.05 || this.geo[b] < 0.05 || this.geo[c] < 0.05) addPlane(this.geo[a], this.geo[b], this.geo[c]);
+    const shape = this.shape;
+    const su = this.su;
+    const sv = this.sv;
+    // blade edges of every stop crossing first, then (for a rounded iris) u and v pairs
+    for (let k = 0; k < this.crossings; k++) {
+      for (let e = 0; e < shape.nx.length; e++) {
+        const nx = shape.nx[e];
+        const ny = shape.ny[e];
+        const o = shape.offset;
+        addPlane(
+          o - (su[a * 3 + k] * nx + sv[a * 3 + k] * ny),
+          o - (su[b * 3 + k] * nx + sv[b * 3 + k] * ny),
+          o - (su[c * 3 + k] * nx + sv[c * 3 + k] * ny),
+        );
+      }
+    }
+    const circleBase = planes;
+    if (shape.circle) {
+      for (let k = 0; k < this.crossings; k++) {
+        addPlane(su[a * 3 + k], su[b * 3 + k], su[c * 3 + k]);
+        addPlane(sv[a * 3 + k], sv[b * 3 + k], sv[c * 3 + k]);
+      }
+    }
+    const polyPlanes = circleBase;
+    const ea = this.energy[a];
+    const egx = gx(ea, this.energy[b], this.energy[c]);
+    const egy = gy(ea, this.energy[b], this.energy[c]);
+    const s0 = scale[0];
+    const s1 = scale[1];
+    const s2 = scale[2];
+    const full = layer.scale === 1;
+    const d = full ? img.data : layer.data;
+    const stride = full ? 4 : 3;
+    const w = full ? img.width : layer.w;
+    for (let py = minY; py <= maxY; py++) {
+      const oy = py + 0.5 - y0;
+      for (let px = minX; px <= maxX; px++) {
+        const ox = px + 0.5 - x0;
+        // barycentric weights of corners b and c; inside when both and their sum stay in [0, 1]
+        const wb = ox * ex1 - oy * ey2;
+        const wc = oy * ex2 - ox * ey1;
+        if (wb < 0 || wc < 0 || wb + wc > 1) continue;
+        let mask = 1;
+        for (let p = 0; p < polyPlanes; p++) {
+          const cov = 0.5 + (p0[p] + ox * pgx[p] + oy * pgy[p]) * pinv[p];
+          if (cov <= 0) {
+            mask = 0;
+            break;
+          }
+          if (cov < mask) mask = cov;
+        }
+        if (mask <= 0) continue;
+        for (let p = polyPlanes; p < planes; p += 2) {
+          const u = p0[p] + ox * pgx[p] + oy * pgy[p];
+          const v = p0[p + 1] + ox * pgx[p + 1] + oy * pgy[p + 1];
+          const width = 0.5 * (1 / pinv[p] + 1 / pinv[p + 1]);
+          const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / width;
+          if (cov < mask) mask = cov;
+        }
+        if (mask <= 0) continue;
+        const e = (ea + ox * egx + oy * egy) * mask;
+        if (e <= 0) continue;
+        const i = (py * w + px) * stride;
+        d[i] += e * s0;
+        d[i + 1] += e * s1;
+        d[i + 2] += e * s2;
+      }
+    }
+  }
+}
+
+/**
+ * Add a low-resolution layer to the image by bilinear interpolation. Layer values are densities
+ * (per full-resolution pixel), so interpolating them keeps the energy.
+ */
+function upsampleAdd(img: FloatImage, layer: Layer): void {
+  const { scale, w, h, data } = layer;
+  const out = img.data;
+  for (let y = 0; y < img.height; y++) {
+    const fy = Math.min(h - 1, Math.max(0, (y + 0.5) / scale - 0.5));
+    const y0 = Math.floor(fy);
+    const y1 = Math.min(h - 1, y0 + 1);
+    const ty = fy - y0;
+    for (let x = 0; x < img.width; x++) {
+      const fx = Math.min(w - 1, Math.max(0, (x + 0.5) / scale - 0.5));
+      const x0 = Math.floor(fx);
+      const x1 = Math.min(w - 1, x0 + 1);
+      const tx = fx - x0;
+      const i00 = (y0 * w + x0) * 3;
+      const i01 = (y0 * w + x1) * 3;
+      const i10 = (y1 * w + x0) * 3;
+      const i11 = (y1 * w + x1) * 3;
+      const o = (y * img.width + x) * 4;
+      for (let c = 0; c < 3; c++) {
+        const top = data[i00 + c] + (data[i01 + c] - data[i00 + c]) * tx;
+        const bot = data[i10 + c] + (data[i11 + c] - data[i10 + c]) * tx;
+        out[o + c] += top + (bot - top) * ty;
+      }
+    }
+  }
+}

@@ -1,0 +1,104 @@
+// A lens prepared for rendering: its focal length and pupil, every two-reflection ghost ranked by
+// a paraxial estimate of its peak irradiance, and each kept ghost's ray-tracing plans per
+// wavelength. Built once per shot (per lens and quality); plain data, so it crosses to workers.
+
+import { reflectance } from './coating.js';
+import { ghostPairs, ghostPath, indexAfter, indexBefore, stopIndex, type GhostPair, type LensModel } from './lens.js';
+import { focalLength, pathMatrix, stopHeightRatio } from './paraxial.js';
+import { spectralSamples, type SpectralSample } from './spectral.js';
+import { planPath, type PathPlan } from './trace.js';
+
+export type GhostQuality = 'draft' | 'low' | 'medium' | 'high';
+
+/** Ray grid cells per side and wavelength samples for each quality. */
+export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number }>> = {
+  draft: { grid: 16, wavelengths: 3 },
+  low: { grid: 24, wavelengths: 3 },
+  medium: { grid: 32, wavelengths: 5 },
+  high: { grid: 64, wavelengths: 7 },
+};
+
+export interface RankedGhost extends GhostPair {
+  /** position ratio: ghost centre over the light's image height (paraxial, 550 nm) */
+  k: number;
+  /** paraxial magnification of the pupil onto the sensor (A of the ghost matrix) */
+  a: number;
+  /** estimated peak irradiance over the irradiance entering the lens (on axis) */
+  strength: number;
+  /** linear RGB tint of R_i R_j at normal incidence, largest channel 1 */
+  tint: [number, number, number];
+  /** for each stop crossing: y_stop = A y + B u from the entrance plane (550 nm) */
+  stopCrossings: { a: number; b: number }[];
+  /** one ray-tracing plan per wavelength sample */
+  plans: PathPlan[];
+}
+
+export interface LensSystem {
+  lens: LensModel;
+  focalLengthMm: number;
+  stop: number;
+  /** stop semi-diameter over entrance-pupil radius */
+  stopRatio: number;
+  samples: SpectralSample[];
+  grid: number;
+  /** every ghost ranked, strongest first (plans only for those kept) */
+  ranked: RankedGhost[];
+  /** how many are rendered: strength at or above the threshold */
+  kept: number;
+}
+
+/** Normal-incidence reflectance of surface k seen from its front at one wavelength. */
+function surfaceR(lens: LensModel, k: number, nm: number, fromFront: boolean): number {
+  const s = lens.surfaces[k];
+  const front = indexBefore(lens, k, nm);
+  const back = indexAfter(lens, k, nm);
+  return fromFront ? reflectance(front, back, s.coating, nm, 1) : reflectance(back, front, [...s.coating].reverse(), nm, 1);
+}
+
+/** Smallest |A| used in ranking: a focused ghost is still a spot of some size (about 20 um). */
+const MIN_SPOT_MM = 0.02;
+
+export function prepareLens(lens: LensModel, quality: GhostQuality, threshold: number): LensSystem {
+  const stop = stopIndex(lens);
+  const f = focalLength(lens);
+  const stopRatio = stopHeightRatio(lens, stop);
+  const q = QUALITY[quality];
+  const samples = spectralSamples(q.wavelengths);
+  const epRadius = f / (2 * lens.fNumberMin);
+  const ranked: RankedGhost[] = ghostPairs(lens).map((pair) => {
+    const path = ghostPath(lens, pair);
+    const m = pathMatrix(lens, path, 550);
+    // i is met from the front on the way in; j from behind on the way back
+    const r550 = surfaceR(lens, pair.i, 550, true) * surfaceR(lens, pair.j, 550, false);
+    const spotA = Math.max(Math.abs(m[0]), MIN_SPOT_MM / epRadius);
+    const strength = r550 / (spotA * spotA);
+    const tint = [0, 0, 0] as [number, number, number];
+    for (const s of spectralSamples(9)) {
+      const r = surfaceR(lens, pair.i, s.nm, true) * surfaceR(lens, pair.j, s.nm, false);
+      for (let c = 0; c < 3; c++) tint[c] += r * s.rgb[c];
+    }
+    const tmax = Math.max(...tint) || 1;
+    // paraxial matrices to each crossing of the stop plane along the ghost path
+    const crossings: { a: number; b: number }[] = [];
+    path.forEach((ev, e) => {
+      if (ev.surface !== stop) return;
+      crossings.push(crossingMatrix(lens, path, e));
+    });
+    return { ...pair, k: m[1] / f, a: m[0], strength, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [] };
+  });
+  ranked.sort((x, y) => y.strength - x.strength || x.i - y.i || x.j - y.j);
+  let kept = 0;
+  for (const g of ranked) {
+    if (g.strength < threshold) break;
+    g.plans = samples.map((s) => planPath(lens, ghostPath(lens, g), s.nm, 1));
+    kept++;
+  }
+  return { lens, focalLengthMm: f, stop, stopRatio, samples, grid: q.grid, ranked, kept };
+}
+
+/** Paraxial (A, B) from the entrance plane to the stop plane at path event e. */
+function crossingMatrix(lens: LensModel, path: ReturnType<typeof ghostPath>, e: number): { a: number; b: number } {
+  const z = lens.surfaces.reduce<number[]>((acc, s) => [...acc, acc[acc.length - 1] + s.gapMm], [0]);
+  const m = pathMatrix(lens, path.slice(0, e), 550, z[path[e].surface]);
+  return { a: m[0], b: m[1] };
+}
