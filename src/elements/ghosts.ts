@@ -8,7 +8,7 @@
 // Cost control: ghosts whose paraxial peak cannot reach a visible value are skipped; large ghosts
 // (smooth inside) are drawn into half- or quarter-resolution buffers, upsampled once per call.
 
-import { irisShape, type IrisShape } from '../optics/iris.js';
+import { irisMargin, irisShape, type IrisShape } from '../optics/iris.js';
 import type { GhostQuality, LensSystem, RankedGhost } from '../optics/ghost-system.js';
 import { RayHit, traceRay, type PathPlan } from '../optics/trace.js';
 import type { FloatImage } from '../raster/image.js';
@@ -40,8 +40,8 @@ export interface GhostStats {
 
 /** Pixel values below this are not worth drawing (a quarter of one 16-bit code). */
 const INVISIBLE = 1 / (4 * 65535);
-/** Sensor cell areas are clamped here (px^2) where the grid folds into a caustic. */
-const MIN_CELL_AREA_PX = 0.02;
+/** Triangles smaller than this (px^2, full resolution) are drawn as point splats of their flux. */
+const SPLAT_AREA_PX = 1;
 /** Ghost sizes (largest side, px) above which it is drawn at half and at quarter resolution. */
 const HALF_RES_PX = 240;
 const QUARTER_RES_PX = 600;
@@ -173,7 +173,8 @@ class GhostGrid {
     this.dx = sx * norm;
     this.dy = sy * norm;
     this.dz = norm;
-    this.launch = system.lens.surfaces[0].semiDiameterMm + 10;
+    // start in front of the hood, so every ray passes its plane
+    this.launch = Math.max(system.lens.surfaces[0].semiDiameterMm + 10, (system.lens.hood?.depthMm ?? 0) + 1);
   }
 
   /** Whether vertex v's ray gets through the barrel and the iris (with a small margin). */
@@ -205,7 +206,8 @@ class GhostGrid {
       const cy = (-b * sy) / a;
       box = { x0: Math.max(box.x0, cx - half), x1: Math.min(box.x1, cx + half), y0: Math.max(box.y0, cy - half), y1: Math.min(box.y1, cy + half) };
     }
-    if (box.x1 <= box.x0 || box.y1 <= box.y0) return undefined;
+    if (box.x1 <= box.x0 || box.y1 <= box.y0) box = { x0: -front, y0: -front, x1: front, y1: front };
+    let searched = false;
     for (let round = 0; round < 4; round++) {
       this.trace(plan, box);
       const n = this.n;
@@ -219,6 +221,13 @@ class GhostGrid {
         if (this.passes(k * s + n, 0.05)) grow.r = true;
       }
       for (let v = 0; v < s * s && !any; v++) any = this.passes(v, 0.05);
+      if (!any && round === 0 && !searched) {
+        // aberrations can move the passing rays outside the paraxial box: look over the whole front
+        searched = true;
+        box = { x0: -front, y0: -front, x1: front, y1: front };
+        round--;
+        continue;
+      }
       if (!any) return round === 0 ? undefined : box;
       const w = box.x1 - box.x0;
       const h = box.y1 - box.y0;
@@ -230,6 +239,33 @@ class GhostGrid {
       };
       if (next.x0 === box.x0 && next.x1 === box.x1 && next.y0 === box.y0 && next.y1 === box.y1) break;
       box = next;
+    }
+    // shrink onto the rays that pass (a thin cat's eye would otherwise get only a few cells),
+    // keeping a cell and a half of margin
+    for (let round = 0; round < 2; round++) {
+      const n = this.n;
+      const s = this.side;
+      const cw = (box.x1 - box.x0) / n;
+      const ch = (box.y1 - box.y0) / n;
+      let i0 = n;
+      let i1 = 0;
+      let j0 = n;
+      let j1 = 0;
+      for (let j = 0; j <= n; j++) {
+        for (let i = 0; i <= n; i++) {
+          if (!this.passes(j * s + i, 0.05)) continue;
+          i0 = Math.min(i0, i);
+          i1 = Math.max(i1, i);
+          j0 = Math.min(j0, j);
+          j1 = Math.max(j1, j);
+        }
+      }
+      if (i1 < i0) break;
+      const tight: Box = { x0: box.x0 + (i0 - 1.5) * cw, x1: box.x0 + (i1 + 1.5) * cw, y0: box.y0 + (j0 - 1.5) * ch, y1: box.y0 + (j1 + 1.5) * ch };
+      const clipped: Box = { x0: Math.max(box.x0, tight.x0), x1: Math.min(box.x1, tight.x1), y0: Math.max(box.y0, tight.y0), y1: Math.min(box.y1, tight.y1) };
+      if ((clipped.x1 - clipped.x0) * (clipped.y1 - clipped.y0) > 0.6 * (box.x1 - box.x0) * (box.y1 - box.y0)) break;
+      box = clipped;
+      this.trace(plan, box);
     }
     // a little extra for the other wavelengths' chromatic shift
     const mx = 0.04 * (box.x1 - box.x0);
@@ -296,8 +332,11 @@ class GhostGrid {
       }
     }
     // irradiance at each vertex: entrance area (foreshortened by cos theta) over sensor area,
-    // averaged over its cells; times the path's throughput
+    // averaged over its cells of at least a pixel (folded, sub-pixel cells near a caustic are
+    // drawn as point splats carrying their exact flux instead, so they neither flicker nor leak
+    // their clamped density into neighbours); times the path's throughput
     const entrance = cw * ch * dz;
+    this.cellEntrance = entrance;
     const e = this.energy;
     e.fill(0);
     const counts = new Uint8Array(side * side);
@@ -310,7 +349,8 @@ class GhostGrid {
         const d = a + side;
         if (!(valid[a] && valid[b] && valid[c] && valid[d])) continue;
         const area = 0.5 * Math.abs((vx[c] - vx[a]) * (vy[d] - vy[b]) - (vx[d] - vx[b]) * (vy[c] - vy[a]));
-        const ratio = entrance / Math.max(area, MIN_CELL_AREA_PX);
+        if (area < SPLAT_AREA_PX) continue;
+        const ratio = entrance / area;
         e[a] += ratio;
         e[b] += ratio;
         e[c] += ratio;
@@ -321,8 +361,11 @@ class GhostGrid {
         counts[d]++;
       }
     }
-    for (let v = 0; v < side * side; v++) if (counts[v]) e[v] = (e[v] / counts[v]) * this.thr[v];
+    for (let v = 0; v < side * side; v++) e[v] = counts[v] ? (e[v] / counts[v]) * this.thr[v] : 0;
   }
+
+  /** entrance area of one grid cell, mm^2 (foreshortened) */
+  cellEntrance = 0;
 
   draw(img: FloatImage, layer: Layer, scale: [number, number, number]): void {
     const { n, side, valid, vig } = this;
@@ -359,7 +402,10 @@ class GhostGrid {
     const x2 = this.vx[c] / s;
     const y2 = this.vy[c] / s;
     const area2 = (x1 - x0) * (y2 - y0) - (x2 - x0) * (y1 - y0);
-    if (Math.abs(area2) < 1e-12) return;
+    if (Math.abs(0.5 * area2) * s * s < SPLAT_AREA_PX) {
+      this.splat(img, layer, a, b, c, (x0 + x1 + x2) / 3, (y0 + y1 + y2) / 3, scale);
+      return;
+    }
     const minX = Math.max(0, Math.ceil(Math.min(x0, x1, x2) - 0.5));
     const maxX = Math.min(layer.w - 1, Math.floor(Math.max(x0, x1, x2) - 0.5));
     const minY = Math.max(0, Math.ceil(Math.min(y0, y1, y2) - 0.5));
@@ -456,6 +502,49 @@ class GhostGrid {
         d[i + 2] += e * s2;
       }
     }
+  }
+
+  /**
+   * A sub-pixel triangle: half its cell's flux (entrance area x throughput, masked at its centre
+   * by the barrel, the geometry and the iris) added at its centroid with bilinear weights.
+   */
+  private splat(img: FloatImage, layer: Layer, a: number, b: number, c: number, cx: number, cy: number, scale: [number, number, number]): void {
+    const third = 1 / 3;
+    const vig = (this.vig[a] + this.vig[b] + this.vig[c]) * third;
+    const geo = (this.geo[a] + this.geo[b] + this.geo[c]) * third;
+    if (vig >= 1 || geo < 0) return;
+    for (let k = 0; k < this.crossings; k++) {
+      const u = (this.su[a * 3 + k] + this.su[b * 3 + k] + this.su[c * 3 + k]) * third;
+      const v = (this.sv[a * 3 + k] + this.sv[b * 3 + k] + this.sv[c * 3 + k]) * third;
+      if (irisMargin(this.shape, u, v) < 0) return;
+    }
+    const thr = (this.thr[a] + this.thr[b] + this.thr[c]) * third;
+    // flux in full-resolution pixel units: density x pixel area (1 px^2 at full resolution)
+    const flux = 0.5 * this.cellEntrance * thr;
+    const full = layer.scale === 1;
+    const w = full ? img.width : layer.w;
+    const h = full ? img.height : layer.h;
+    const stride = full ? 4 : 3;
+    const d = full ? img.data : layer.data;
+    // a layer pixel covers scale^2 full-resolution pixels: spread the flux as density over it
+    const amount = flux / (layer.scale * layer.scale);
+    const fx = cx - 0.5;
+    const fy = cy - 0.5;
+    const ix = Math.floor(fx);
+    const iy = Math.floor(fy);
+    const tx = fx - ix;
+    const ty = fy - iy;
+    const put = (x: number, y: number, wgt: number) => {
+      if (x < 0 || y < 0 || x >= w || y >= h || wgt <= 0) return;
+      const i = (y * w + x) * stride;
+      d[i] += amount * wgt * scale[0];
+      d[i + 1] += amount * wgt * scale[1];
+      d[i + 2] += amount * wgt * scale[2];
+    };
+    put(ix, iy, (1 - tx) * (1 - ty));
+    put(ix + 1, iy, tx * (1 - ty));
+    put(ix, iy + 1, (1 - tx) * ty);
+    put(ix + 1, iy + 1, tx * ty);
   }
 }
 

@@ -3,6 +3,7 @@
 import { readFileSync, statSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { resolveShot } from '../shot/resolve.js';
+import { presetNames, presetPath } from './presets.js';
 import type { ResolvedShot } from '../shot/types.js';
 
 /** Shot and track files larger than this are refused before parsing. */
@@ -28,5 +29,5 @@ export function loadShot(file: string): ResolvedShot {
     throw new InputError(`${file}: not a text file (a YAML shot file was expected)`);
   }
   // messages name the shot as the user wrote it
-  return resolveShot(text, file, { readText: readTextFile });
+  return resolveShot(text, file, { readText: readTextFile, presetNames, presetPath });
 }

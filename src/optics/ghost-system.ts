@@ -3,7 +3,7 @@
 // wavelength. Built once per shot (per lens and quality); plain data, so it crosses to workers.
 
 import { reflectance } from './coating.js';
-import { ghostPairs, ghostPath, indexAfter, indexBefore, stopIndex, type GhostPair, type LensModel } from './lens.js';
+import { defaultHood, ghostPairs, ghostPath, indexAfter, indexBefore, stopIndex, type GhostPair, type LensModel } from './lens.js';
 import { focalLength, pathMatrix, stopHeightRatio } from './paraxial.js';
 import { spectralSamples, type SpectralSample } from './spectral.js';
 import { planPath, type PathPlan } from './trace.js';
@@ -19,7 +19,11 @@ export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths:
 };
 
 export interface RankedGhost extends GhostPair {
-  /** position ratio: ghost centre over the light's image height (paraxial, 550 nm) */
+  /**
+   * position ratio: ghost centre over the light's image height (paraxial, 550 nm). The rays that
+   * pass the iris enter around y = -(b_c / a_c) u, so the centre is (B - A b_c / a_c) u, not B u,
+   * unless the stop is met before the reflections.
+   */
   k: number;
   /** paraxial magnification of the pupil onto the sensor (A of the ghost matrix) */
   a: number;
@@ -58,9 +62,11 @@ function surfaceR(lens: LensModel, k: number, nm: number, fromFront: boolean): n
 /** Smallest |A| used in ranking: a focused ghost is still a spot of some size (about 20 um). */
 const MIN_SPOT_MM = 0.02;
 
-export function prepareLens(lens: LensModel, quality: GhostQuality, threshold: number): LensSystem {
+export function prepareLens(lensIn: LensModel, quality: GhostQuality, threshold: number): LensSystem {
+  const f = focalLength(lensIn);
+  // a lens without a hood given gets one matched to its format; { depthMm: 0 } means none
+  const lens: LensModel = lensIn.hood === undefined ? { ...lensIn, hood: defaultHood(lensIn, f) } : lensIn.hood.depthMm > 0 ? lensIn : { ...lensIn, hood: undefined };
   const stop = stopIndex(lens);
-  const f = focalLength(lens);
   const stopRatio = stopHeightRatio(lens, stop);
   const q = QUALITY[quality];
   const samples = spectralSamples(q.wavelengths);
@@ -84,7 +90,10 @@ export function prepareLens(lens: LensModel, quality: GhostQuality, threshold: n
       if (ev.surface !== stop) return;
       crossings.push(crossingMatrix(lens, path, e));
     });
-    return { ...pair, k: m[1] / f, a: m[0], strength, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [] };
+    // the crossing that limits the bundle most (largest |a_c|) sets where it enters
+    const limiting = crossings.reduce((best, c) => (Math.abs(c.a) > Math.abs(best.a) ? c : best), crossings[0]);
+    const entryShift = limiting && Math.abs(limiting.a) > 1e-9 ? limiting.b / limiting.a : 0;
+    return { ...pair, k: (m[1] - m[0] * entryShift) / f, a: m[0], strength, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [] };
   });
   ranked.sort((x, y) => y.strength - x.strength || x.i - y.i || x.j - y.j);
   let kept = 0;

@@ -39,6 +39,28 @@ export interface LensModel {
   sensorWidthMm: number;
   /** horizontal squeeze of an anamorphic lens (1 = spherical) */
   squeeze: number;
+  /**
+   * the front barrel or hood: a circular opening `depthMm` ahead of the first vertex; light from
+   * far outside the field is cut here, so ghosts fade smoothly as the light leaves. Absent: a
+   * default matched to the format (defaultHood); depthMm 0: none.
+   */
+  hood?: { depthMm: number; radiusMm: number };
+}
+
+/** A default hood closes completely at this multiple of the frame corner's field (tan). */
+export const HOOD_CUTOFF = 2;
+
+/**
+ * A hood matched to the format, like a matte box: it never vignettes the image-forming beam inside
+ * the frame corner (its opening is the front element's plus the corner chief ray's travel to it)
+ * and it cuts every ray through the front element at HOOD_CUTOFF x the corner's field (tan):
+ * depth D = 2 S / (tan_cut - tan_corner), radius R = D tan_corner + S, S the front semi-diameter.
+ */
+export function defaultHood(lens: LensModel, focalLengthMm: number): { depthMm: number; radiusMm: number } {
+  const s = lens.surfaces[0].semiDiameterMm;
+  const tanCorner = Math.hypot(lens.sensorWidthMm / 2, lens.sensorWidthMm / 3) / focalLengthMm;
+  const depthMm = (2 * s) / ((HOOD_CUTOFF - 1) * tanCorner);
+  return { depthMm, radiusMm: depthMm * tanCorner + s };
 }
 
 /** One step of a light path: what happens at a surface, and the direction of travel before it. */

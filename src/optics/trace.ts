@@ -29,6 +29,9 @@ export interface PathPlan {
   sensorZ: number;
   nm: number;
   stopRadiusMm: number;
+  /** the lens's front barrel/hood opening (radius 0: none) */
+  hoodZ: number;
+  hoodRadius: number;
 }
 
 export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiusMm: number): PathPlan {
@@ -48,6 +51,8 @@ export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiu
     sensorZ: zs[zs.length - 1],
     nm,
     stopRadiusMm,
+    hoodZ: lens.hood ? -lens.hood.depthMm : 0,
+    hoodRadius: lens.hood ? lens.hood.radiusMm : 0,
   };
   path.forEach((ev, e) => {
     const s = lens.surfaces[ev.surface];
@@ -104,6 +109,11 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   out.vignette = 0;
   out.throughput = 1;
   out.margin = 1;
+  if (plan.hoodRadius > 0 && dz > 0) {
+    // the hood's opening counts like a clear aperture (a ray launched behind it is not checked)
+    const t = (plan.hoodZ - pz) / dz;
+    if (t >= 0) out.vignette = Math.hypot(px + t * dx, py + t * dy) / plan.hoodRadius;
+  }
   for (let e = 0; e < plan.n; e++) {
     const zv = plan.z[e];
     const r = plan.radius[e];

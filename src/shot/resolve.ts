@@ -11,10 +11,13 @@ import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 import type { Vec2 } from '../timeline/path.js';
 import { canDropFrame, timecodeToFrames } from '../timeline/timecode.js';
 import type { Key, PathShape } from '../timeline/track.js';
+import { LENS_KEYS, readLens } from './lens-file.js';
 import { Field, MapField, parseYamlSource } from './source.js';
 import { parseTrackCsv } from './track-csv.js';
 import type {
+  GhostSettings,
   GlowSettings,
+  ResolvedLens,
   IntensityUnit,
   ResolvedFrame,
   ResolvedLight,
@@ -30,11 +33,15 @@ export const MAX_FRAMES = 1_000_000;
 export const MAX_COORD_PX = 1_000_000;
 
 export const DEFAULT_GLOW: GlowSettings = { fraction: 0.04, sizePx: 6, falloff: 3 };
+export const DEFAULT_GHOSTS: GhostSettings = { enabled: true, gain: 1, quality: 'medium', threshold: 1e-6 };
 export const DEFAULT_RADIUS_PX = 4;
 
 /** What the resolver may read besides the shot itself (track CSVs); injected so shot/ does no I/O. */
 export interface ShotReader {
   readText(absolutePath: string): string;
+  /** preset lenses: their names, and the file of one */
+  presetNames?(): string[];
+  presetPath?(name: string): string;
 }
 
 export function resolveShot(text: string, file: string, reader: ShotReader): ResolvedShot {
@@ -75,13 +82,15 @@ class Resolver {
     const seed = seedField ? seedField.number({ integer: true, min: 0, max: 2 ** 32 - 1 }) : 0;
     const lightsField = m.require('lights', 'a list of the lights in the shot');
     const lights = lightsField ? this.lights(lightsField) : undefined;
+    const lensField = m.get('lens');
+    const lens = lensField ? this.lens(lensField) : undefined;
     const flareField = m.get('flare');
-    const glow = flareField ? this.flare(flareField) : DEFAULT_GLOW;
+    const flare = flareField ? this.flare(flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS };
     const outField = m.require('output', 'where and how frames are written');
     const output = outField ? this.output(outField) : undefined;
     m.finish();
-    if (!frame || !lights || !output || !glow || seed === undefined) return undefined;
-    return { version: 1, file: absFile, frame, seed, lights, glow, output };
+    if (!frame || !lights || !output || !flare || seed === undefined || (lensField && !lens)) return undefined;
+    return { version: 1, file: absFile, frame, seed, lights, glow: flare.glow, ...(lens ? { lens } : {}), ghosts: flare.ghosts, output };
   }
 
   frame(f: Field): ResolvedFrame | undefined {
@@ -315,12 +324,18 @@ class Resolver {
     return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
   }
 
-  flare(f: Field): GlowSettings | undefined {
+  flare(f: Field): { glow: GlowSettings; ghosts: GhostSettings } | undefined {
     const m = f.map();
     if (!m) return undefined;
     const g = m.get('glow');
+    const gh = m.get('ghosts');
     m.finish();
-    if (!g) return DEFAULT_GLOW;
+    const glow = g ? this.glow(g) : DEFAULT_GLOW;
+    const ghosts = gh ? this.ghosts(gh) : DEFAULT_GHOSTS;
+    return glow && ghosts ? { glow, ghosts } : undefined;
+  }
+
+  glow(g: Field): GlowSettings | undefined {
     const gm = g.map();
     if (!gm) return undefined;
     const get = (key: string, rule: Parameters<Field['number']>[0], dflt: number) => {
@@ -333,6 +348,86 @@ class Resolver {
     gm.finish();
     if (fraction === undefined || sizePx === undefined || falloff === undefined) return undefined;
     return { fraction, sizePx, falloff };
+  }
+
+  ghosts(g: Field): GhostSettings | undefined {
+    const m = g.map('{enabled, gain, quality, threshold}');
+    if (!m) return undefined;
+    const en = m.get('enabled');
+    if (en && typeof en.scalar !== 'boolean') en.expected('true or false');
+    const gain = m.get('gain')?.number({ min: 0, max: 1e6 }) ?? (m.has('gain') ? undefined : DEFAULT_GHOSTS.gain);
+    const qf = m.get('quality');
+    const quality = qf ? qf.oneOf(['draft', 'low', 'medium', 'high'] as const) : DEFAULT_GHOSTS.quality;
+    const threshold = m.get('threshold')?.number({ min: 0, max: 1 }) ?? (m.has('threshold') ? undefined : DEFAULT_GHOSTS.threshold);
+    m.finish();
+    if (gain === undefined || !quality || threshold === undefined) return undefined;
+    return { enabled: en ? en.scalar === true : true, gain, quality, threshold };
+  }
+
+  lens(f: Field): ResolvedLens | undefined {
+    const m = f.map('{preset: NAME}, {file: PATH}, or a lens description, with f_number');
+    if (!m) return undefined;
+    const presetField = m.get('preset');
+    const fileField = m.get('file');
+    const fnField = m.get('f_number');
+    let model: ResolvedLens['model'] | undefined;
+    let source = 'inline';
+    const hasInline = LENS_KEYS.some((k) => m.has(k));
+    if ([presetField, fileField, hasInline ? f : undefined].filter(Boolean).length > 1) {
+      return f.error('a lens is a preset, a file, or described inline: give one of them');
+    }
+    if (presetField) {
+      const name = presetField.string('a preset name');
+      const names = this.reader.presetNames?.() ?? [];
+      if (name !== undefined) {
+        if (!names.includes(name)) {
+          presetField.oneOf(names);
+        } else {
+          source = `preset ${name}`;
+          model = this.lensFile(presetField, this.reader.presetPath!(name), `lenses/${name}.yaml`);
+        }
+      }
+    } else if (fileField) {
+      const rel = fileField.string('a path to a lens file');
+      if (rel !== undefined) {
+        const abs = path.resolve(this.dir, rel);
+        source = abs;
+        model = this.lensFile(fileField, abs, path.isAbsolute(rel) ? rel : path.join(this.shownDir, rel));
+      }
+    } else if (hasInline) {
+      model = readLens(m, 'inline lens');
+    } else {
+      f.error('expected preset, file, or the lens keys (surfaces, ...)');
+    }
+    let fNumber: Key<number>[] | undefined;
+    if (model) {
+      const rule = { min: model.fNumberMin, max: 64 };
+      fNumber = fnField ? this.scalarKeys(fnField, 'value', rule) : [{ frame: 0, value: model.fNumberMin, ease: LINEAR }];
+    }
+    m.finish();
+    if (!model || !fNumber) return undefined;
+    return { model, source, fNumber };
+  }
+
+  /** A lens in a file of its own: its own YAML document, its own located messages. */
+  lensFile(at: Field, abs: string, shown: string): ResolvedLens['model'] | undefined {
+    let text: string;
+    try {
+      text = this.reader.readText(abs);
+    } catch (e) {
+      return at.error(`cannot read lens file ${abs}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+    }
+    const { ctx, root } = parseYamlSource(text, shown);
+    let model: ResolvedLens['model'] | undefined;
+    const lm = root?.map('a lens: a mapping with version, surfaces, ...');
+    if (lm) {
+      const v = lm.require('version', 'the lens-file format version, 1');
+      if (v && v.scalar !== 1) v.expected('version 1');
+      model = readLens(lm, path.basename(abs, '.yaml'));
+      lm.finish();
+    }
+    this.diagnostics.push(...ctx.diagnostics);
+    return ctx.diagnostics.length ? undefined : model;
   }
 
   output(f: Field): ResolvedOutput | undefined {

@@ -229,6 +229,11 @@ export class MapField {
     return this.field.path ? `${this.field.path}.${key}` : key;
   }
 
+  /** Every key present, in file order (each is declared by reading it with get). */
+  keys(): string[] {
+    return [...this.entries.keys()];
+  }
+
   has(key: string): boolean {
     this.declared.add(key);
     return this.entries.has(key);

@@ -1,6 +1,8 @@
 // The resolved shot: every default applied, units normalised, paths absolute. The rest of the
 // program sees only this form. Plain data: it crosses to worker threads by structured clone.
 
+import type { GhostQuality } from '../optics/ghost-system.js';
+import type { LensModel } from '../optics/lens.js';
 import type { FrameRate } from '../timeline/frame-rate.js';
 import type { Key, PathShape } from '../timeline/track.js';
 import type { Vec2 } from '../timeline/path.js';
@@ -49,6 +51,23 @@ export interface GlowSettings {
   falloff: number;
 }
 
+export interface GhostSettings {
+  enabled: boolean;
+  /** artistic gain on top of the physical brightness */
+  gain: number;
+  quality: GhostQuality;
+  /** ghosts whose paraxial peak estimate is below this fraction of the entering irradiance are skipped */
+  threshold: number;
+}
+
+export interface ResolvedLens {
+  model: LensModel;
+  /** where it came from: "preset NAME", a file path, or "inline" */
+  source: string;
+  /** f-number keys */
+  fNumber: Key<number>[];
+}
+
 export interface ResolvedOutput {
   /** absolute path template with a frame placeholder (#### or %04d) */
   template: string;
@@ -65,5 +84,8 @@ export interface ResolvedShot {
   seed: number;
   lights: ResolvedLight[];
   glow: GlowSettings;
+  /** absent: the shot names no lens, and no ghosts are rendered */
+  lens?: ResolvedLens;
+  ghosts: GhostSettings;
   output: ResolvedOutput;
 }

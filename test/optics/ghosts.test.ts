@@ -1,0 +1,249 @@
+// Rendered ghosts behave as a real lens's do. Sources: OPTICS.md section 2 (geometry facts:
+// Koreban & Schechner, "Geometry by deflaring", ICCP 2009 for collinearity; ghost size from the
+// paraxial matrix; energy from the area ratio of Hullin et al. 2011).
+
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { addGhosts, type GhostView } from '../../src/elements/ghosts.js';
+import { prepareLens, type LensSystem } from '../../src/optics/ghost-system.js';
+import { irisArea, irisShape } from '../../src/optics/iris.js';
+import { ghostPairs } from '../../src/optics/lens.js';
+import { focalLength } from '../../src/optics/paraxial.js';
+import { presetNames, presetPath } from '../../src/io/presets.js';
+import { FloatImage } from '../../src/raster/image.js';
+import { parseYamlSource } from '../../src/shot/source.js';
+import { readLens } from '../../src/shot/lens-file.js';
+import type { LensModel } from '../../src/optics/lens.js';
+
+function preset(name: string): LensModel {
+  const { ctx, root } = parseYamlSource(readFileSync(presetPath(name), 'utf8'), name);
+  const m = root!.map()!;
+  m.get('version');
+  const lens = readLens(m, name)!;
+  m.finish();
+  expect(ctx.diagnostics).toEqual([]);
+  return lens;
+}
+
+const W = 640;
+const H = 480;
+const view: GhostView = { widthPx: W, heightPx: H, pixelAspect: 1, opticalCentre: [W / 2, H / 2] };
+/** A canvas three frames wide and high around the frame, so nothing a ghost sends is cut off. */
+const BIG: GhostView = { widthPx: W, heightPx: H, pixelAspect: 1, opticalCentre: [W / 2 + W, H / 2 + H] };
+
+/** One ghost of a prepared lens, by its surfaces. */
+function only(system: LensSystem, i: number, j: number): LensSystem {
+  const g = system.ranked.find((r) => r.i === i && r.j === j)!;
+  return { ...system, ranked: [g], kept: 1 };
+}
+
+function render(system: LensSystem, x: number, y: number, fNumber: number, flux = 1e6, quality: 'draft' | 'medium' | 'high' = 'high'): FloatImage {
+  const img = new FloatImage(W, H);
+  addGhosts(img, system, view, { xPx: x, yPx: y, flux: [flux, flux, flux] }, { fNumber, gain: 1, quality });
+  return img;
+}
+
+/** Render on the big canvas; positions and moments stay in frame coordinates. */
+function renderBig(system: LensSystem, x: number, y: number, fNumber: number, flux = 1e6, quality: 'draft' | 'medium' | 'high' = 'high') {
+  const img = new FloatImage(3 * W, 3 * H);
+  addGhosts(img, system, BIG, { xPx: x + W, yPx: y + H, flux: [flux, flux, flux] }, { fNumber, gain: 1, quality });
+  const m = momentsOf(img, 3 * W, 3 * H);
+  return { ...m, cx: m.cx - W, cy: m.cy - H };
+}
+
+function moments(img: FloatImage) {
+  return momentsOf(img, W, H);
+}
+
+function momentsOf(img: FloatImage, W: number, H: number) {
+  let s = 0;
+  let sx = 0;
+  let sy = 0;
+  let peak = 0;
+  for (let p = 0; p < W * H; p++) {
+    const v = img.data[p * 4 + 1];
+    if (v <= 0) continue;
+    s += v;
+    sx += v * ((p % W) + 0.5);
+    sy += v * (Math.floor(p / W) + 0.5);
+    peak = Math.max(peak, v);
+  }
+  return { sum: s, cx: sx / s, cy: sy / s, peak };
+}
+
+/** Energy-weighted mean squared distance from the centroid, px^2. */
+function spread(img: FloatImage): number {
+  const m = moments(img);
+  let s2 = 0;
+  for (let p = 0; p < W * H; p++) {
+    const v = img.data[p * 4 + 1];
+    if (v > 0) s2 += v * (((p % W) + 0.5 - m.cx) ** 2 + (Math.floor(p / W) + 0.5 - m.cy) ** 2);
+  }
+  return s2 / m.sum;
+}
+
+/** Pixels covered at half the ghost's typical (median) level: its area. */
+function coveredArea(img: FloatImage): number {
+  const vals: number[] = [];
+  for (let p = 0; p < W * H; p++) if (img.data[p * 4 + 1] > 0) vals.push(img.data[p * 4 + 1]);
+  vals.sort((a, b) => a - b);
+  const half = vals[Math.floor(vals.length / 2)] / 2;
+  return vals.filter((v) => v >= half).length;
+}
+
+describe('preset lenses', () => {
+  const labelled: Record<string, number> = { 'triplet-50': 50, 'double-gauss-50': 50, 'zoom-like-35': 35, 'anamorphic-40-2x': 40 };
+  it('ships the four presets', () => {
+    expect(presetNames()).toEqual(Object.keys(labelled).sort());
+  });
+  for (const [name, f] of Object.entries(labelled)) {
+    it(`${name}: the focal length computed from the prescription is the labelled ${f} mm`, () => {
+      expect(focalLength(preset(name))).toBeCloseTo(f, 2);
+    });
+  }
+  it('more surfaces give more ghosts: N(N-1)/2 for 6, 10 and 16 reflecting surfaces (combinatorics)', () => {
+    expect(ghostPairs(preset('triplet-50'))).toHaveLength(15);
+    expect(ghostPairs(preset('double-gauss-50'))).toHaveLength(45);
+    expect(ghostPairs(preset('zoom-like-35'))).toHaveLength(120);
+    expect(preset('zoom-like-35').surfaces.filter((s) => !s.stop).length).toBeGreaterThanOrEqual(14);
+  });
+});
+
+describe('ghost geometry and brightness', () => {
+  const lens = preset('double-gauss-50');
+  const system = prepareLens(lens, 'high', 0);
+  // a ghost whose only stop crossing is on the way in (both reflections behind the stop): the
+  // rays that pass are those of the entrance pupil
+  const firstLeg = system.ranked.find((g) => g.stopCrossings.length === 1 && g.j > system.stop && Math.abs(g.a) > 0.2 && Math.abs(g.a) < 1.5)!;
+  // and one whose stop crossing comes after both reflections
+  const lastLeg = system.ranked.find((g) => g.stopCrossings.length === 1 && g.i < system.stop && Math.abs(g.a) > 0.5 && Math.abs(g.a) < 1.2)!;
+  const one = only(system, firstLeg.i, firstLeg.j);
+
+  it('ghost centres lie on the line through the optical centre and the light (Koreban & Schechner 2009)', () => {
+    for (const [x, y] of [[420, 180], [200, 400], [600, 60]]) {
+      for (const g of system.ranked.slice(0, 6)) {
+        const m = renderBig(only(system, g.i, g.j), x, y, 8, 1e6, 'high');
+        if (!(m.sum > 0)) continue;
+        // perpendicular distance of the centroid from the line centre -> light; the ray grid is
+        // not mirror-symmetric about that line, so allow a pixel plus 0.5% of the ghost's reach
+        const lx = x - W / 2;
+        const ly = y - H / 2;
+        const dist = Math.abs((m.cx - W / 2) * ly - (m.cy - H / 2) * lx) / Math.hypot(lx, ly);
+        expect(dist).toBeLessThan(1 + 0.005 * Math.hypot(m.cx - W / 2, m.cy - H / 2));
+      }
+    }
+  });
+
+  it('near the axis a ghost sits at its paraxial position ratio k (OPTICS.md section 2)', () => {
+    for (const g of [firstLeg, lastLeg]) {
+      const m = renderBig(only(system, g.i, g.j), W / 2 + 10, H / 2, 8);
+      expect(Math.abs((m.cx - W / 2) / 10 - g.k)).toBeLessThan(0.05);
+    }
+  });
+
+  it('stopping down shrinks a ghost in proportion to the stop (paraxial: radius = |A| x pupil radius)', () => {
+    for (const g of [firstLeg, lastLeg]) {
+      // energy-weighted mean squared radius goes as the square of the size: f/8 -> f/16 is 4x
+      const wide = spread(render(only(system, g.i, g.j), W / 2 + 5, H / 2 + 5, 8));
+      const narrow = spread(render(only(system, g.i, g.j), W / 2 + 5, H / 2 + 5, 16));
+      // aberrations and vignetting change the shape a little with the aperture: within 10%
+      expect(wide / narrow).toBeGreaterThan(3.6);
+      expect(wide / narrow).toBeLessThan(4.4);
+    }
+  });
+
+  it('(and by covered area, for the pupil-limited ghost)', () => {
+    const wide = coveredArea(render(one, W / 2 + 5, H / 2 + 5, 8));
+    const narrow = coveredArea(render(one, W / 2 + 5, H / 2 + 5, 16));
+    expect(wide / narrow).toBeGreaterThan(3.6);
+    expect(wide / narrow).toBeLessThan(4.4);
+  });
+
+  it('stopping down does not dim a ghost per unit of light entering the lens (computed)', () => {
+    // the same irradiance entering the lens: flux proportional to the pupil area
+    const pupil = (n: number) => Math.PI * (focalLength(lens) / (2 * n)) ** 2;
+    const median = (img: FloatImage) => {
+      const v: number[] = [];
+      for (let p = 0; p < W * H; p++) if (img.data[p * 4 + 1] > 0) v.push(img.data[p * 4 + 1]);
+      v.sort((a, b) => a - b);
+      return v[Math.floor(v.length * 0.6)];
+    };
+    const a = median(render(one, W / 2 + 5, H / 2 + 5, 8, 1e3 * pupil(8)));
+    const b = median(render(one, W / 2 + 5, H / 2 + 5, 16, 1e3 * pupil(16)));
+    expect(b / a).toBeGreaterThan(0.9);
+    expect(b / a).toBeLessThan(1.1);
+  });
+
+  it('an unvignetted on-axis ghost carries flux x R_i R_j x the share of the pupil its bundle fills (Hullin et al. 2011)', () => {
+    // the iris polygon's share of the stop circle it is inscribed in
+    const share = irisArea(irisShape(lens.iris)) / Math.PI;
+    for (const g of [firstLeg, lastLeg]) {
+      const m = renderBig(only(system, g.i, g.j), W / 2 + 0.01, H / 2 + 0.01, 11);
+      // the bundle that passes enters over (stop radius / |a_c|)^2 of area, against the entrance
+      // pupil's (stop radius / stop ratio)^2; strength x A^2 is R_i R_j at 550 nm
+      const c = g.stopCrossings[0];
+      const fill = (system.stopRatio / Math.abs(c.a)) ** 2;
+      const expected = 1e6 * share * fill * g.strength * g.a * g.a;
+      // the coatings' reflectance varies over the spectrum and transmissions lose a few per cent
+      expect(m.sum / expected).toBeGreaterThan(0.8);
+      expect(m.sum / expected).toBeLessThan(1.25);
+    }
+  });
+
+  it('a 5-blade iris gives a pentagonal ghost: five corners in its radial profile', () => {
+    const five = prepareLens({ ...lens, iris: { blades: 5, rotationDeg: 0, roundness: 0 } }, 'high', 0);
+    const img = render(only(five, lastLeg.i, lastLeg.j), W / 2 + 0.01, H / 2 + 0.01, 5.6);
+    const m = moments(img);
+    // boundary radius by angle: the farthest lit pixel in each of 360 directions
+    const radius = new Float64Array(360);
+    for (let p = 0; p < W * H; p++) {
+      if (img.data[p * 4 + 1] < m.peak * 0.05) continue;
+      const dx = (p % W) + 0.5 - m.cx;
+      const dy = Math.floor(p / W) + 0.5 - m.cy;
+      const a = Math.floor(((Math.atan2(dy, dx) * 180) / Math.PI + 360) % 360);
+      radius[a] = Math.max(radius[a], Math.hypot(dx, dy));
+    }
+    // smooth, then count local maxima that stand out
+    const sm = radius.map((_, a) => { let s = 0; for (let k = -4; k <= 4; k++) s += radius[(a + k + 360) % 360]; return s / 9; });
+    const mean = sm.reduce((s, v) => s + v, 0) / 360;
+    let corners = 0;
+    for (let a = 0; a < 360; a++) {
+      const prev = sm[(a + 359) % 360];
+      const next = sm[(a + 1) % 360];
+      if (sm[a] > prev && sm[a] >= next && sm[a] > mean * 1.03) corners++;
+    }
+    expect(corners).toBe(5);
+  });
+
+  it('a light just outside the frame still gives ghosts', () => {
+    const inside = moments(render(system, W - 20, 100, 8, 1e6, 'medium')).sum;
+    const outside = moments(render(system, W + 20, 100, 8, 1e6, 'medium')).sum;
+    expect(outside).toBeGreaterThan(0.5 * inside);
+  });
+
+  it('nothing pops as the light crosses the frame edge: just inside and just outside give the same ghosts', () => {
+    const inside = renderBig(system, W - 1, H / 2 - 60, 8, 1e6, 'medium').sum;
+    const edge = renderBig(system, W, H / 2 - 60, 8, 1e6, 'medium').sum;
+    const outside = renderBig(system, W + 1, H / 2 - 60, 8, 1e6, 'medium').sum;
+    expect(Math.abs(edge - inside) / inside).toBeLessThan(0.02);
+    expect(Math.abs(outside - edge) / edge).toBeLessThan(0.02);
+  });
+
+  it('a ghost cut by the barrel fades smoothly to zero as the light moves out (a closing cat\'s eye)', () => {
+    const sums: number[] = [];
+    for (let x = W - 100; x <= W + 100; x += 10) sums.push(renderBig(only(system, lastLeg.i, lastLeg.j), x, H / 2 - 60, 8, 1e6, 'medium').sum);
+    const peak = Math.max(...sums);
+    for (let k = 1; k < sums.length; k++) {
+      expect(sums[k]).toBeLessThanOrEqual(sums[k - 1] * 1.01);
+      expect(sums[k - 1] - sums[k]).toBeLessThan(0.15 * peak);
+    }
+    expect(sums[sums.length - 1]).toBeLessThan(0.01 * peak);
+  });
+
+  it('ghosts are gone once the light is far outside the field (the hood and the barrel)', () => {
+    const near = renderBig(system, W - 20, H / 2 - 60, 8, 1e6, 'draft').sum;
+    const far = renderBig(system, W + 1200, H / 2 - 60, 8, 1e6, 'draft').sum;
+    expect(near).toBeGreaterThan(0);
+    expect(far).toBe(0);
+});
+});
