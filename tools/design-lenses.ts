@@ -92,19 +92,26 @@ function toYaml(lens: LensModel, form: Form): string {
     `iris: { blades: ${lens.iris.blades}, rotation: ${lens.iris.rotationDeg}, roundness: ${lens.iris.roundness} }`,
   ];
   if (lens.squeeze !== 1) lines.push(`squeeze: ${lens.squeeze}`);
-  lines.push('coating: mgf2   # single-layer quarter-wave MgF2 at 550 nm on air-glass surfaces');
+  lines.push('coating: mgf2   # default: single-layer quarter-wave MgF2 at 550 nm on air-glass surfaces');
   lines.push('glasses:');
   lines.push(`  ${DENSE_CROWN.kind === 'abbe' ? `dense-crown: { nd: ${DENSE_CROWN.nd}, vd: ${DENSE_CROWN.vd} }` : ''}`);
   lines.push(`  ${LIGHT_FLINT.kind === 'abbe' ? `light-flint: { nd: ${LIGHT_FLINT.nd}, vd: ${LIGHT_FLINT.vd} }` : ''}`);
   lines.push('surfaces:');
-  for (const s of lens.surfaces) {
+  // like a real multi-coated lens, the single layers are centred at different wavelengths from
+  // surface to surface, so the ghosts come in several tints
+  const designNm = [550, 500, 600, 470, 620, 530, 580];
+  let coated = 0;
+  for (const [k, s] of lens.surfaces.entries()) {
     if (s.stop) {
       lines.push(`  - { stop: true, gap: ${r2(s.gapMm)}, semi_diameter: ${r2(s.semiDiameterMm)} }`);
       continue;
     }
     const radius = s.radiusMm === 0 ? 'flat' : r2(s.radiusMm);
     const glass = s.glass.kind === 'air' ? '' : `, glass: ${glassKey(s.glass)}`;
-    lines.push(`  - { radius: ${radius}, gap: ${r2(s.gapMm)}${glass}, semi_diameter: ${r2(s.semiDiameterMm)} }`);
+    const before = k === 0 ? AIR : lens.surfaces[k - 1].glass;
+    const airGlass = (before.kind === 'air') !== (s.glass.kind === 'air');
+    const coating = airGlass ? `, coating: { layer: 1.38, wavelength: ${designNm[coated++ % designNm.length]} }` : '';
+    lines.push(`  - { radius: ${radius}, gap: ${r2(s.gapMm)}${glass}, semi_diameter: ${r2(s.semiDiameterMm)}${coating} }`);
   }
   return lines.join('\n') + '\n';
 }

@@ -9,6 +9,10 @@ import { loadShot } from '../io/load-shot.js';
 import { checkOutputTemplate } from '../shot/resolve.js';
 import type { ResolvedShot } from '../shot/types.js';
 import { encodeFrame, renderSequence, type FrameRange } from '../render/sequence.js';
+import { loadLens } from '../io/load-lens.js';
+import { encodePng } from '../io/png.js';
+import { prepareLens } from '../optics/ghost-system.js';
+import { formatLensReport, lensPlot, lensReport } from '../optics/report.js';
 import { Progress } from './progress.js';
 import { shotSummary } from './summary.js';
 
@@ -118,6 +122,24 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       const shot = loadShot(shotFile);
       if (path.extname(opts.out).toLowerCase() !== '.png') throw new UsageError(`--out: the file must end in .png, found "${opts.out}"`);
       writeFileAtomic(path.resolve(opts.out), encodeFrame(shot, opts.frame));
+    });
+
+  program
+    .command('lens')
+    .description('show a lens: computed focal length, pupil, and its ghosts ranked by strength')
+    .argument('<lens>', 'a preset name (see lenses/) or a lens file (YAML)')
+    .option('--json', 'print the report as JSON')
+    .option('--all', 'list every ghost, not only the 20 strongest')
+    .option('--plot <file>', 'draw the lens cross-section and the strongest ghost\'s rays to a PNG')
+    .action((name: string, opts: { json?: boolean; all?: boolean; plot?: string }) => {
+      if (opts.plot && path.extname(opts.plot).toLowerCase() !== '.png') throw new UsageError(`--plot: the file must end in .png, found "${opts.plot}"`);
+      const { lens, source } = loadLens(name);
+      const system = prepareLens(lens, 'medium', 0);
+      const report = lensReport(lens, system);
+      io.stdout(opts.json ? `${JSON.stringify(report, null, 2)}\n` : formatLensReport(report, source, opts.all ? Infinity : 20));
+      if (opts.plot) {
+        writeFileAtomic(path.resolve(opts.plot), encodePng(lensPlot(lens, system), { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+      }
     });
 
   return program;

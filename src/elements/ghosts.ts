@@ -214,11 +214,13 @@ class GhostGrid {
       const s = this.side;
       let any = false;
       const grow = { l: false, r: false, t: false, b: false };
+      // near misses on the border count too: a thin passing sliver can touch the border between
+      // two grid points
       for (let k = 0; k <= n; k++) {
-        if (this.passes(k, 0.05)) grow.t = true;
-        if (this.passes(n * s + k, 0.05)) grow.b = true;
-        if (this.passes(k * s, 0.05)) grow.l = true;
-        if (this.passes(k * s + n, 0.05)) grow.r = true;
+        if (this.passes(k, 0.25)) grow.t = true;
+        if (this.passes(n * s + k, 0.25)) grow.b = true;
+        if (this.passes(k * s, 0.25)) grow.l = true;
+        if (this.passes(k * s + n, 0.25)) grow.r = true;
       }
       for (let v = 0; v < s * s && !any; v++) any = this.passes(v, 0.05);
       if (!any && round === 0 && !searched) {
@@ -388,10 +390,37 @@ class GhostGrid {
   }
 
   // per-triangle plane coefficients: value = p0 + ox gx + oy gy, coverage = 0.5 + value * inv
-  private readonly p0 = new Float64Array(64);
-  private readonly pgx = new Float64Array(64);
-  private readonly pgy = new Float64Array(64);
-  private readonly pinv = new Float64Array(64);
+  private readonly p0 = new Float64Array(128);
+  private readonly pgx = new Float64Array(128);
+  private readonly pgy = new Float64Array(128);
+  private readonly pinv = new Float64Array(128);
+  private planes = 0;
+  private ex1 = 0;
+  private ey1 = 0;
+  private ex2 = 0;
+  private ey2 = 0;
+
+  /**
+   * Add a mask plane from its values at the three corners, unless every corner is fully inside
+   * it (the plane is affine, so its minimum over the triangle is at a corner). Returns false when
+   * every corner is fully outside: the triangle is masked away.
+   */
+  private addPlane(va: number, vb: number, vc: number): boolean {
+    const gx = (vb - va) * this.ex1 - (vc - va) * this.ey1;
+    const gy = (vc - va) * this.ex2 - (vb - va) * this.ey2;
+    const inv = 1 / Math.max(1e-9, Math.sqrt(gx * gx + gy * gy));
+    const lo = Math.min(va, vb, vc);
+    const hi = Math.max(va, vb, vc);
+    // a pixel's coverage changes by at most one pixel's worth of the plane: half-width 0.5 / inv
+    if (lo * inv > 0.5 + 0.71) return true;
+    if (hi * inv < -0.5 - 0.71) return false;
+    const k = this.planes++;
+    this.p0[k] = va;
+    this.pgx[k] = gx;
+    this.pgy[k] = gy;
+    this.pinv[k] = inv;
+    return true;
+  }
 
   private triangle(img: FloatImage, layer: Layer, a: number, b: number, c: number, scale: [number, number, number]): void {
     const s = layer.scale;
@@ -412,55 +441,79 @@ class GhostGrid {
     const maxY = Math.min(layer.h - 1, Math.floor(Math.max(y0, y1, y2) - 0.5));
     if (minX > maxX || minY > maxY) return;
     const inv = 1 / area2;
-    const ex1 = (y2 - y0) * inv;
-    const ey1 = (y1 - y0) * inv;
-    const ex2 = (x1 - x0) * inv;
-    const ey2 = (x2 - x0) * inv;
-    // gradient of a value given at the three corners
-    const gx = (fa: number, fb: number, fc: number) => (fb - fa) * ex1 - (fc - fa) * ey1;
-    const gy = (fa: number, fb: number, fc: number) => (fc - fa) * ex2 - (fb - fa) * ey2;
-    const { p0, pgx, pgy, pinv } = this;
-    let planes = 0;
-    const addPlane = (va: number, vb: number, vc: number) => {
-      const px = gx(va, vb, vc);
-      const py = gy(va, vb, vc);
-      p0[planes] = va;
-      pgx[planes] = px;
-      pgy[planes] = py;
-      pinv[planes] = 1 / Math.max(1e-9, Math.hypot(px, py));
-      planes++;
-    };
+    this.ex1 = (y2 - y0) * inv;
+    this.ey1 = (y1 - y0) * inv;
+    this.ex2 = (x1 - x0) * inv;
+    this.ey2 = (x2 - x0) * inv;
+    this.planes = 0;
     // the barrel: 1 - vignetting ratio; the geometry: rays that missed a sphere or were totally
     // reflected have a negative margin
-    addPlane(1 - this.vig[a], 1 - this.vig[b], 1 - this.vig[c]);
-    if (this.geo[a] < 0.05 || this.geo[b] < 0.05 || this.geo[c] < 0.05) addPlane(this.geo[a], this.geo[b], this.geo[c]);
-    const shape = this.shape;
-    const su = this.su;
-    const sv = this.sv;
-    // blade edges of every stop crossing first, then (for a rounded iris) u and v pairs
+    const { vig, geo, su, sv, shape } = this;
+    if (!this.addPlane(1 - vig[a], 1 - vig[b], 1 - vig[c])) return;
+    // the margin is not a distance: only near its zero does it mark an edge
+    if (Math.min(geo[a], geo[b], geo[c]) < 0.05 && !this.addPlane(geo[a], geo[b], geo[c])) return;
+    // blade edges of every stop crossing first, then (for a rounded iris) the circle
+    const nb = shape.nx.length;
+    const o = shape.offset;
     for (let k = 0; k < this.crossings; k++) {
-      for (let e = 0; e < shape.nx.length; e++) {
+      const ua = su[a * 3 + k];
+      const ub = su[b * 3 + k];
+      const uc = su[c * 3 + k];
+      const va = sv[a * 3 + k];
+      const vb = sv[b * 3 + k];
+      const vc = sv[c * 3 + k];
+      for (let e = 0; e < nb; e++) {
         const nx = shape.nx[e];
         const ny = shape.ny[e];
-        const o = shape.offset;
-        addPlane(
-          o - (su[a * 3 + k] * nx + sv[a * 3 + k] * ny),
-          o - (su[b * 3 + k] * nx + sv[b * 3 + k] * ny),
-          o - (su[c * 3 + k] * nx + sv[c * 3 + k] * ny),
-        );
+        if (!this.addPlane(o - (ua * nx + va * ny), o - (ub * nx + vb * ny), o - (uc * nx + vc * ny))) return;
       }
     }
-    const circleBase = planes;
+    const polyPlanes = this.planes;
+    // circle: u and v planes in pairs, kept only where a corner is near or past the rim
+    const circles: number[] = [];
     if (shape.circle) {
       for (let k = 0; k < this.crossings; k++) {
-        addPlane(su[a * 3 + k], su[b * 3 + k], su[c * 3 + k]);
-        addPlane(sv[a * 3 + k], sv[b * 3 + k], sv[c * 3 + k]);
+        const ra = Math.hypot(su[a * 3 + k], sv[a * 3 + k]);
+        const rb = Math.hypot(su[b * 3 + k], sv[b * 3 + k]);
+        const rc = Math.hypot(su[c * 3 + k], sv[c * 3 + k]);
+        if (Math.max(ra, rb, rc) < 0.9) continue;
+        circles.push(k);
       }
     }
-    const polyPlanes = circleBase;
+    const { p0, pgx, pgy, pinv, ex1, ey1, ex2, ey2 } = this;
     const ea = this.energy[a];
-    const egx = gx(ea, this.energy[b], this.energy[c]);
-    const egy = gy(ea, this.energy[b], this.energy[c]);
+    const eb = this.energy[b];
+    const ec = this.energy[c];
+    const egx = (eb - ea) * ex1 - (ec - ea) * ey1;
+    const egy = (ec - ea) * ex2 - (eb - ea) * ey2;
+    // circle planes: u, v of each listed crossing
+    const cu0: number[] = [];
+    const cugx: number[] = [];
+    const cugy: number[] = [];
+    const cv0: number[] = [];
+    const cvgx: number[] = [];
+    const cvgy: number[] = [];
+    const cw: number[] = [];
+    for (const k of circles) {
+      const ua = su[a * 3 + k];
+      const ub = su[b * 3 + k];
+      const uc = su[c * 3 + k];
+      const va = sv[a * 3 + k];
+      const vb = sv[b * 3 + k];
+      const vc = sv[c * 3 + k];
+      const ugx = (ub - ua) * ex1 - (uc - ua) * ey1;
+      const ugy = (uc - ua) * ex2 - (ub - ua) * ey2;
+      const vgx = (vb - va) * ex1 - (vc - va) * ey1;
+      const vgy = (vc - va) * ex2 - (vb - va) * ey2;
+      cu0.push(ua);
+      cugx.push(ugx);
+      cugy.push(ugy);
+      cv0.push(va);
+      cvgx.push(vgx);
+      cvgy.push(vgy);
+      cw.push(Math.max(1e-9, 0.5 * (Math.hypot(ugx, ugy) + Math.hypot(vgx, vgy))));
+    }
+    const nc = circles.length;
     const s0 = scale[0];
     const s1 = scale[1];
     const s2 = scale[2];
@@ -486,11 +539,10 @@ class GhostGrid {
           if (cov < mask) mask = cov;
         }
         if (mask <= 0) continue;
-        for (let p = polyPlanes; p < planes; p += 2) {
-          const u = p0[p] + ox * pgx[p] + oy * pgy[p];
-          const v = p0[p + 1] + ox * pgx[p + 1] + oy * pgy[p + 1];
-          const width = 0.5 * (1 / pinv[p] + 1 / pinv[p + 1]);
-          const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / width;
+        for (let q = 0; q < nc; q++) {
+          const u = cu0[q] + ox * cugx[q] + oy * cugy[q];
+          const v = cv0[q] + ox * cvgx[q] + oy * cvgy[q];
+          const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / cw[q];
           if (cov < mask) mask = cov;
         }
         if (mask <= 0) continue;

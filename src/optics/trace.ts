@@ -26,12 +26,34 @@ export interface PathPlan {
   transmit: Float64Array;
   /** for reflections: coating layers in the order the ray meets them */
   layers: { index: number; thicknessNm: number }[][];
+  /** for reflections: reflectance tabulated over the incidence cosine (REFLECT_STEPS + 1 values) */
+  reflectTable: (Float64Array | null)[];
   sensorZ: number;
   nm: number;
   stopRadiusMm: number;
   /** the lens's front barrel/hood opening (radius 0: none) */
   hoodZ: number;
   hoodRadius: number;
+}
+
+/** Steps of the reflectance table over the incidence cosine (its error is below 1e-4 relative). */
+const REFLECT_STEPS = 256;
+
+/**
+ * Reflectance against the incidence cosine, tabulated; rows are spaced in cos^2 so they are
+ * dense near grazing and near the critical angle, where reflectance changes fastest.
+ */
+function reflectTable(n0: number, ns: number, layers: { index: number; thicknessNm: number }[], nm: number): Float64Array {
+  const t = new Float64Array(REFLECT_STEPS + 1);
+  for (let k = 0; k <= REFLECT_STEPS; k++) t[k] = reflectance(n0, ns, layers, nm, Math.sqrt(k / REFLECT_STEPS));
+  return t;
+}
+
+function lookupReflect(t: Float64Array, cos: number): number {
+  const f = Math.min(1, cos * cos) * REFLECT_STEPS;
+  const i = Math.min(REFLECT_STEPS - 1, Math.floor(f));
+  const w = f - i;
+  return t[i] + (t[i + 1] - t[i]) * w;
 }
 
 export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiusMm: number): PathPlan {
@@ -48,6 +70,7 @@ export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiu
     stop: new Uint8Array(n),
     transmit: new Float64Array(n),
     layers: [],
+    reflectTable: [],
     sensorZ: zs[zs.length - 1],
     nm,
     stopRadiusMm,
@@ -67,6 +90,7 @@ export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiu
     plan.stop[e] = s.stop ? 1 : 0;
     const layers = ev.dir === 1 ? s.coating : [...s.coating].reverse();
     plan.layers.push(layers);
+    plan.reflectTable.push(ev.action === 'reflect' && !s.stop ? reflectTable(plan.nIn[e], plan.nOut[e], layers, nm) : null);
     // the coating's gain in transmission at normal incidence; the angle enters through the bare
     // Fresnel transmission at trace time (it falls to 0 at grazing incidence)
     plan.transmit[e] = s.stop ? 1 : (1 - reflectance(plan.nIn[e], plan.nOut[e], layers, nm, 1)) / (1 - reflectance(plan.nIn[e], plan.nOut[e], [], nm, 1));
@@ -100,7 +124,7 @@ export class RayHit {
  * Trace a ray from (ox, oy, oz) along the unit vector (dx, dy, dz) through the planned path to the
  * sensor plane. Returns false if it is lost.
  */
-export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, out: RayHit): boolean {
+export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, out: RayHit, points?: number[]): boolean {
   let px = ox;
   let py = oy;
   let pz = oz;
@@ -153,6 +177,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       py += t * dy;
       pz += t * dz;
     }
+    if (points) points.push(pz, py);
     const h = Math.sqrt(px * px + py * py);
     if (plan.stop[e]) {
       if (out.stopCount < 3) {
@@ -173,7 +198,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       cosi = -cosi;
     }
     if (plan.reflect[e]) {
-      out.throughput *= reflectance(plan.nIn[e], plan.nOut[e], plan.layers[e], plan.nm, cosi);
+      out.throughput *= lookupReflect(plan.reflectTable[e]!, cosi);
       dx += 2 * cosi * nx;
       dy += 2 * cosi * ny;
       dz += 2 * cosi * nz;
@@ -199,6 +224,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   const t = (plan.sensorZ - pz) / dz;
   out.x = px + t * dx;
   out.y = py + t * dy;
+  if (points) points.push(plan.sensorZ, out.y);
   out.dx = dx;
   out.dy = dy;
   out.dz = dz;

@@ -4,7 +4,22 @@
 import { quarterWave, type Coating } from '../optics/coating.js';
 import { AIR, CATALOGUE, type GlassModel } from '../optics/glass.js';
 import type { Iris, LensModel, LensSurface } from '../optics/lens.js';
-import { Field, MapField } from './source.js';
+import type { Diagnostic } from '../errors.js';
+import { Field, MapField, parseYamlSource } from './source.js';
+
+/** A lens file of its own (version 1), with its problems located in that file. */
+export function parseLensText(text: string, shownFile: string, defaultName: string): { model?: LensModel; diagnostics: Diagnostic[] } {
+  const { ctx, root } = parseYamlSource(text, shownFile);
+  let model: LensModel | undefined;
+  const m = root?.map('a lens: a mapping with version, surfaces, ...');
+  if (m) {
+    const v = m.require('version', 'the lens-file format version, 1');
+    if (v && v.scalar !== 1) v.expected('version 1');
+    model = readLens(m, defaultName);
+    m.finish();
+  }
+  return ctx.diagnostics.length ? { diagnostics: ctx.diagnostics } : { model, diagnostics: [] };
+}
 
 /** Single-layer quarter-wave MgF2 (n 1.38) at 550 nm: the default for air-glass surfaces. */
 export const DEFAULT_COATING: Coating = [quarterWave(1.38, 550)];

@@ -11,7 +11,7 @@ import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 import type { Vec2 } from '../timeline/path.js';
 import { canDropFrame, timecodeToFrames } from '../timeline/timecode.js';
 import type { Key, PathShape } from '../timeline/track.js';
-import { LENS_KEYS, readLens } from './lens-file.js';
+import { LENS_KEYS, parseLensText, readLens } from './lens-file.js';
 import { Field, MapField, parseYamlSource } from './source.js';
 import { parseTrackCsv } from './track-csv.js';
 import type {
@@ -417,17 +417,9 @@ class Resolver {
     } catch (e) {
       return at.error(`cannot read lens file ${abs}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
     }
-    const { ctx, root } = parseYamlSource(text, shown);
-    let model: ResolvedLens['model'] | undefined;
-    const lm = root?.map('a lens: a mapping with version, surfaces, ...');
-    if (lm) {
-      const v = lm.require('version', 'the lens-file format version, 1');
-      if (v && v.scalar !== 1) v.expected('version 1');
-      model = readLens(lm, path.basename(abs, '.yaml'));
-      lm.finish();
-    }
-    this.diagnostics.push(...ctx.diagnostics);
-    return ctx.diagnostics.length ? undefined : model;
+    const { model, diagnostics } = parseLensText(text, shown, path.basename(abs, '.yaml'));
+    this.diagnostics.push(...diagnostics);
+    return model;
   }
 
   output(f: Field): ResolvedOutput | undefined {

@@ -18,7 +18,7 @@ function straylight(args: string[], cwd = root) {
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
-/** Centre of the brightest spot: centroid of pixels at or above half the peak, near the peak. */
+/** Centre of the brightest spot: centroid of the pixels at the peak value, near the peak. */
 function brightestSpot(file: string, near?: [number, number], within = 30): [number, number] {
   const png = decode(readFileSync(file));
   const ch = png.channels;
@@ -32,22 +32,28 @@ function brightestSpot(file: string, near?: [number, number], within = 30): [num
     const v = lum(i);
     if (v > best) [best, bi] = [v, i];
   }
-  const px = bi % png.width;
-  const py = Math.floor(bi / png.width);
-  let sx = 0;
-  let sy = 0;
-  let sw = 0;
-  for (let y = py - 12; y <= py + 12; y++) {
-    for (let x = px - 12; x <= px + 12; x++) {
-      if (x < 0 || y < 0 || x >= png.width || y >= png.height) continue;
-      const v = lum(y * png.width + x);
-      if (v < best / 2) continue;
-      sx += (x + 0.5) * v;
-      sy += (y + 0.5) * v;
-      sw += v;
+  // centroid of the pixels at or above half the peak in a window, re-centred on the centroid a few
+  // times (the saturated core can be wider than the window around its first pixel)
+  let cx = (bi % png.width) + 0.5;
+  let cy = Math.floor(bi / png.width) + 0.5;
+  for (let iter = 0; iter < 6; iter++) {
+    let sx = 0;
+    let sy = 0;
+    let sw = 0;
+    for (let y = Math.floor(cy) - 30; y <= Math.floor(cy) + 30; y++) {
+      for (let x = Math.floor(cx) - 30; x <= Math.floor(cx) + 30; x++) {
+        if (x < 0 || y < 0 || x >= png.width || y >= png.height) continue;
+        // the fully saturated core only: light around it (glow, ghosts) cannot tilt it
+        if (lum(y * png.width + x) < best) continue;
+        sx += x + 0.5;
+        sy += y + 0.5;
+        sw += 1;
+      }
     }
+    cx = sx / sw;
+    cy = sy / sw;
   }
-  return [sx / sw, sy / sw];
+  return [cx, cy];
 }
 
 describe('straylight end to end', () => {

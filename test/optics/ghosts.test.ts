@@ -7,7 +7,8 @@ import { describe, expect, it } from 'vitest';
 import { addGhosts, type GhostView } from '../../src/elements/ghosts.js';
 import { prepareLens, type LensSystem } from '../../src/optics/ghost-system.js';
 import { irisArea, irisShape } from '../../src/optics/iris.js';
-import { ghostPairs } from '../../src/optics/lens.js';
+import { ghostPairs, indexAfter, indexBefore } from '../../src/optics/lens.js';
+import { reflectance } from '../../src/optics/coating.js';
 import { focalLength } from '../../src/optics/paraxial.js';
 import { presetNames, presetPath } from '../../src/io/presets.js';
 import { FloatImage } from '../../src/raster/image.js';
@@ -114,15 +115,24 @@ describe('ghost geometry and brightness', () => {
   const system = prepareLens(lens, 'high', 0);
   // a ghost whose only stop crossing is on the way in (both reflections behind the stop): the
   // rays that pass are those of the entrance pupil
-  const firstLeg = system.ranked.find((g) => g.stopCrossings.length === 1 && g.j > system.stop && Math.abs(g.a) > 0.2 && Math.abs(g.a) < 1.5)!;
+  const firstLeg = system.ranked.find((g) => g.i === 10 && g.j === 8)!;
   // and one whose stop crossing comes after both reflections
-  const lastLeg = system.ranked.find((g) => g.stopCrossings.length === 1 && g.i < system.stop && Math.abs(g.a) > 0.5 && Math.abs(g.a) < 1.2)!;
+  const lastLeg = system.ranked.find((g) => g.i === 2 && g.j === 0)!;
+  it('(the two ghosts these tests use cross the stop where they are meant to)', () => {
+    expect(firstLeg.stopCrossings).toHaveLength(1);
+    expect(firstLeg.j).toBeGreaterThan(system.stop);
+    expect(lastLeg.stopCrossings).toHaveLength(1);
+    expect(lastLeg.i).toBeLessThan(system.stop);
+  });
   const one = only(system, firstLeg.i, firstLeg.j);
 
   it('ghost centres lie on the line through the optical centre and the light (Koreban & Schechner 2009)', () => {
+    // the claim is for a rotationally symmetric lens: a round iris (a polygon is symmetric only
+    // about its own axes, and a heavily clipped ghost shows it)
+    const round = prepareLens({ ...lens, iris: { blades: 0, rotationDeg: 0, roundness: 1 } }, 'high', 0);
     for (const [x, y] of [[420, 180], [200, 400], [600, 60]]) {
-      for (const g of system.ranked.slice(0, 6)) {
-        const m = renderBig(only(system, g.i, g.j), x, y, 8, 1e6, 'high');
+      for (const g of round.ranked.slice(0, 6)) {
+        const m = renderBig(only(round, g.i, g.j), x, y, 8, 1e6, 'high');
         if (!(m.sum > 0)) continue;
         // perpendicular distance of the centroid from the line centre -> light; the ray grid is
         // not mirror-symmetric about that line, so allow a pixel plus 0.5% of the ghost's reach
@@ -180,13 +190,24 @@ describe('ghost geometry and brightness', () => {
     for (const g of [firstLeg, lastLeg]) {
       const m = renderBig(only(system, g.i, g.j), W / 2 + 0.01, H / 2 + 0.01, 11);
       // the bundle that passes enters over (stop radius / |a_c|)^2 of area, against the entrance
-      // pupil's (stop radius / stop ratio)^2; strength x A^2 is R_i R_j at 550 nm
+      // pupil's (stop radius / stop ratio)^2
       const c = g.stopCrossings[0];
       const fill = (system.stopRatio / Math.abs(c.a)) ** 2;
-      const expected = 1e6 * share * fill * g.strength * g.a * g.a;
-      // the coatings' reflectance varies over the spectrum and transmissions lose a few per cent
-      expect(m.sum / expected).toBeGreaterThan(0.8);
-      expect(m.sum / expected).toBeLessThan(1.25);
+      // R_i R_j at normal incidence, weighted across the spectrum as the green channel sees it
+      // (thin-film formula of the coating module, itself checked against OPTICS.md section 3)
+      let rr = 0;
+      for (const smp of system.samples) {
+        const n = (k: number) => [indexBefore(lens, k, smp.nm), indexAfter(lens, k, smp.nm)];
+        const [fi, bi] = n(g.i);
+        const [fj, bj] = n(g.j);
+        const ri = reflectance(fi, bi, lens.surfaces[g.i].coating, smp.nm, 1);
+        const rj = reflectance(bj, fj, [...lens.surfaces[g.j].coating].reverse(), smp.nm, 1);
+        rr += smp.rgb[1] * ri * rj;
+      }
+      const expected = 1e6 * share * fill * rr;
+      // what remains is the transmission of the other surfaces (about 0.5% lost at each)
+      expect(m.sum / expected).toBeGreaterThan(0.85);
+      expect(m.sum / expected).toBeLessThan(1.02);
     }
   });
 
@@ -234,7 +255,8 @@ describe('ghost geometry and brightness', () => {
     for (let x = W - 100; x <= W + 100; x += 10) sums.push(renderBig(only(system, lastLeg.i, lastLeg.j), x, H / 2 - 60, 8, 1e6, 'medium').sum);
     const peak = Math.max(...sums);
     for (let k = 1; k < sums.length; k++) {
-      expect(sums[k]).toBeLessThanOrEqual(sums[k - 1] * 1.01);
+      // (the bundle that passes can grow a little with the angle before the barrel cuts it)
+      expect(sums[k]).toBeLessThanOrEqual(sums[k - 1] * 1.02);
       expect(sums[k - 1] - sums[k]).toBeLessThan(0.15 * peak);
     }
     expect(sums[sums.length - 1]).toBeLessThan(0.01 * peak);
