@@ -1,22 +1,28 @@
 // `npm run bench`: stage costs at production sizes, as ratios measured in one run.
 // Each figure is the median of several runs after a warm-up. Later stages add their rows here.
 
+import { readFileSync } from 'node:fs';
+import { addGhosts } from '../src/elements/ghosts.js';
 import { encodePng } from '../src/io/png.js';
+import { presetPath } from '../src/io/presets.js';
+import { prepareLens, type GhostQuality } from '../src/optics/ghost-system.js';
+import { FloatImage } from '../src/raster/image.js';
 import { renderFrame } from '../src/render/render-frame.js';
+import { parseLensText } from '../src/shot/lens-file.js';
 import { resolveShot } from '../src/shot/resolve.js';
 import type { ResolvedShot } from '../src/shot/types.js';
 
-const RUNS = Number(process.env.BENCH_RUNS ?? 7);
+const RUNS = Number(process.env.BENCH_RUNS ?? 5);
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   return s[Math.floor(s.length / 2)];
 }
 
-function time(fn: () => void): number {
+function time(fn: () => void, runs = RUNS): number {
   fn(); // warm-up
   const t: number[] = [];
-  for (let i = 0; i < RUNS; i++) {
+  for (let i = 0; i < runs; i++) {
     const start = performance.now();
     fn();
     t.push(performance.now() - start);
@@ -24,32 +30,57 @@ function time(fn: () => void): number {
   return median(t);
 }
 
-/** A 1920x1080 shot like the demo's: two lights with glow, one partly off frame. */
-function hdShot(width: number, height: number): ResolvedShot {
+/** A shot like the demo's: two lights with glow, one near the frame edge; no lens. */
+function glowShot(width: number, height: number): ResolvedShot {
   const text = `version: 1
 frame: { width: ${width}, height: ${height}, rate: 24, first: 1, last: 1 }
 lights:
-  - { name: beacon, position: [${width * 0.4}, ${height * 0.25}], intensity: 5, radius: 10, colour: { kelvin: 2800 } }
-  - { name: lamp, position: [${width * 0.98}, ${height * 0.76}], intensity: 1, radius: 5, colour: { kelvin: 4500 } }
+  - { name: beacon, position: [${width * 0.4}, ${height * 0.25}], intensity: 13, radius: 10, colour: { kelvin: 2800 } }
+  - { name: lamp, position: [${width * 0.98}, ${height * 0.76}], intensity: 6, radius: 5, colour: { kelvin: 4500 } }
 flare:
-  glow: { fraction: 0.25, size: 12, falloff: 2.4 }
+  glow: { fraction: 0.02, size: 8, falloff: 2.6 }
 output: { path: "bench.####.png" }
 `;
   return resolveShot(text, 'bench.yaml', { readText: () => '' });
 }
 
-const rows: [string, number][] = [];
-const shot = hdShot(1920, 1080);
+const rows: [string, string][] = [];
+const ms = (v: number) => `${v.toFixed(1)} ms`;
+
+// --- foundation: frame synthesis vs PNG encoding at 1920x1080
+const shot = glowShot(1920, 1080);
 let img = renderFrame(shot, 1);
 const synth = time(() => {
   img = renderFrame(shot, 1);
 });
 const encode16 = time(() => encodePng(img, { bitDepth: 16, transfer: 'srgb', alpha: 'none' }));
 const encode8 = time(() => encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
-rows.push(['frame synthesis 1920x1080 (2 lights: disk + glow)', synth]);
-rows.push(['PNG encode 1920x1080, 16-bit sRGB', encode16]);
-rows.push(['PNG encode 1920x1080, 8-bit sRGB', encode8]);
+rows.push(['disk + glow, 2 lights, 1920x1080', ms(synth)]);
+rows.push(['PNG encode 1920x1080, 16-bit sRGB', ms(encode16)]);
+rows.push(['PNG encode 1920x1080, 8-bit sRGB', ms(encode8)]);
+rows.push(['ratio disk + glow / 16-bit encode', (synth / encode16).toFixed(2)]);
+
+// --- ghosts: the many-element preset at each quality, one bright light at 1920x1080
+const { model: zoom } = parseLensText(readFileSync(presetPath('zoom-like-35'), 'utf8'), 'zoom-like-35.yaml', 'zoom-like-35');
+const view = { widthPx: 1920, heightPx: 1080, pixelAspect: 1, opticalCentre: [960, 540] as const };
+for (const quality of ['draft', 'low', 'medium', 'high'] as GhostQuality[]) {
+  let prep = 0;
+  const system = (() => {
+    const t = performance.now();
+    const s = prepareLens(zoom!, quality, 1e-6);
+    prep = performance.now() - t;
+    return s;
+  })();
+  const stats = { drawn: 0, skipped: 0 };
+  const flux = 2 ** 14 * Math.PI * 100;
+  const ghostMs = time(() => {
+    const g = new FloatImage(1920, 1080);
+    stats.drawn = 0;
+    stats.skipped = 0;
+    addGhosts(g, system, view, { xPx: 1400, yPx: 300, flux: [flux, flux, flux] }, { fNumber: 4, gain: 1, quality }, stats);
+  }, quality === 'high' ? 3 : RUNS);
+  rows.push([`ghosts zoom-like-35 (${system.kept} kept, ${stats.drawn} drawn), ${quality}`, `${ms(ghostMs)}  (x${(ghostMs / encode16).toFixed(2)} of encode; lens prep ${prep.toFixed(0)} ms)`]);
+}
 
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
-for (const [name, ms] of rows) console.log(`  ${name.padEnd(52)} ${ms.toFixed(1).padStart(8)} ms`);
-console.log(`  ${'ratio synthesis / 16-bit PNG encode'.padEnd(52)} ${(synth / encode16).toFixed(2).padStart(8)}`);
+for (const [name, v] of rows) console.log(`  ${name.padEnd(58)} ${v}`);

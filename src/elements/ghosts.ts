@@ -45,6 +45,8 @@ const SPLAT_AREA_PX = 1;
 /** Ghost sizes (largest side, px) above which it is drawn at half and at quarter resolution. */
 const HALF_RES_PX = 240;
 const QUARTER_RES_PX = 600;
+/** Cells per side of the coarse grid that finds each ghost's ray box. */
+const FIT_GRID = 12;
 
 /** Pixels per sensor millimetre, horizontally and vertically. */
 export function pxPerMm(system: LensSystem, view: GhostView): [number, number] {
@@ -89,6 +91,9 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
     return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false };
   });
   const centre = Math.floor(system.samples.length / 2);
+  // a coarse grid finds each ghost's ray box; the fine grid traces and draws it
+  const coarse = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
+  const grid = new GhostGrid(system, system.grid, view, sx, sy, stopRadius, pxX, pxY, shape);
   for (let g = 0; g < system.kept; g++) {
     const ghost = system.ranked[g];
     // paraxial peak estimate: skip what cannot reach a visible value
@@ -96,15 +101,14 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
       if (stats) stats.skipped++;
       continue;
     }
-    const grid = new GhostGrid(system, view, sx, sy, stopRadius, pxX, pxY, shape);
-    const box = grid.fitBox(ghost, ghost.plans[centre]);
+    const box = coarse.fitBox(ghost, ghost.plans[centre]);
     if (!box) {
       if (stats) stats.skipped++;
       continue;
     }
     let layer = layers[0];
     if (multiRes) {
-      const size = grid.passingSizePx();
+      const size = coarse.passingSizePx();
       if (size > QUARTER_RES_PX) layer = layers[2];
       else if (size > HALF_RES_PX) layer = layers[1];
     }
@@ -141,6 +145,7 @@ class GhostGrid {
   readonly geo: Float64Array;
   readonly su: Float64Array;
   readonly sv: Float64Array;
+  readonly counts: Uint8Array;
   crossings = 0;
   private readonly dx: number;
   private readonly dy: number;
@@ -149,6 +154,7 @@ class GhostGrid {
 
   constructor(
     readonly system: LensSystem,
+    n: number,
     readonly view: GhostView,
     sx: number,
     sy: number,
@@ -157,8 +163,9 @@ class GhostGrid {
     readonly pxY: number,
     readonly shape: IrisShape,
   ) {
-    this.n = system.grid;
+    this.n = n;
     this.side = this.n + 1;
+    this.counts = new Uint8Array(this.side * this.side);
     const m = this.side * this.side;
     this.vx = new Float64Array(m);
     this.vy = new Float64Array(m);
@@ -341,7 +348,8 @@ class GhostGrid {
     this.cellEntrance = entrance;
     const e = this.energy;
     e.fill(0);
-    const counts = new Uint8Array(side * side);
+    const counts = this.counts;
+    counts.fill(0);
     const { vx, vy, valid } = this;
     for (let j = 0; j < n; j++) {
       for (let i = 0; i < n; i++) {
@@ -395,6 +403,13 @@ class GhostGrid {
   private readonly pgy = new Float64Array(128);
   private readonly pinv = new Float64Array(128);
   private planes = 0;
+  private readonly cu0 = new Float64Array(3);
+  private readonly cugx = new Float64Array(3);
+  private readonly cugy = new Float64Array(3);
+  private readonly cv0 = new Float64Array(3);
+  private readonly cvgx = new Float64Array(3);
+  private readonly cvgy = new Float64Array(3);
+  private readonly cw = new Float64Array(3);
   private ex1 = 0;
   private ey1 = 0;
   private ex2 = 0;
@@ -469,51 +484,39 @@ class GhostGrid {
       }
     }
     const polyPlanes = this.planes;
-    // circle: u and v planes in pairs, kept only where a corner is near or past the rim
-    const circles: number[] = [];
+    // circle: u and v of each crossing, kept only where a corner is near or past the rim
+    const { cu0, cugx, cugy, cv0, cvgx, cvgy, cw } = this;
+    let nc = 0;
+    const { ex1, ey1, ex2, ey2 } = this;
     if (shape.circle) {
       for (let k = 0; k < this.crossings; k++) {
-        const ra = Math.hypot(su[a * 3 + k], sv[a * 3 + k]);
-        const rb = Math.hypot(su[b * 3 + k], sv[b * 3 + k]);
-        const rc = Math.hypot(su[c * 3 + k], sv[c * 3 + k]);
-        if (Math.max(ra, rb, rc) < 0.9) continue;
-        circles.push(k);
+        const ua = su[a * 3 + k];
+        const ub = su[b * 3 + k];
+        const uc = su[c * 3 + k];
+        const va = sv[a * 3 + k];
+        const vb = sv[b * 3 + k];
+        const vc = sv[c * 3 + k];
+        if (Math.max(ua * ua + va * va, ub * ub + vb * vb, uc * uc + vc * vc) < 0.81) continue;
+        const ugx = (ub - ua) * ex1 - (uc - ua) * ey1;
+        const ugy = (uc - ua) * ex2 - (ub - ua) * ey2;
+        const vgx = (vb - va) * ex1 - (vc - va) * ey1;
+        const vgy = (vc - va) * ex2 - (vb - va) * ey2;
+        cu0[nc] = ua;
+        cugx[nc] = ugx;
+        cugy[nc] = ugy;
+        cv0[nc] = va;
+        cvgx[nc] = vgx;
+        cvgy[nc] = vgy;
+        cw[nc] = Math.max(1e-9, 0.5 * (Math.sqrt(ugx * ugx + ugy * ugy) + Math.sqrt(vgx * vgx + vgy * vgy)));
+        nc++;
       }
     }
-    const { p0, pgx, pgy, pinv, ex1, ey1, ex2, ey2 } = this;
+    const { p0, pgx, pgy, pinv } = this;
     const ea = this.energy[a];
     const eb = this.energy[b];
     const ec = this.energy[c];
     const egx = (eb - ea) * ex1 - (ec - ea) * ey1;
     const egy = (ec - ea) * ex2 - (eb - ea) * ey2;
-    // circle planes: u, v of each listed crossing
-    const cu0: number[] = [];
-    const cugx: number[] = [];
-    const cugy: number[] = [];
-    const cv0: number[] = [];
-    const cvgx: number[] = [];
-    const cvgy: number[] = [];
-    const cw: number[] = [];
-    for (const k of circles) {
-      const ua = su[a * 3 + k];
-      const ub = su[b * 3 + k];
-      const uc = su[c * 3 + k];
-      const va = sv[a * 3 + k];
-      const vb = sv[b * 3 + k];
-      const vc = sv[c * 3 + k];
-      const ugx = (ub - ua) * ex1 - (uc - ua) * ey1;
-      const ugy = (uc - ua) * ex2 - (ub - ua) * ey2;
-      const vgx = (vb - va) * ex1 - (vc - va) * ey1;
-      const vgy = (vc - va) * ex2 - (vb - va) * ey2;
-      cu0.push(ua);
-      cugx.push(ugx);
-      cugy.push(ugy);
-      cv0.push(va);
-      cvgx.push(vgx);
-      cvgy.push(vgy);
-      cw.push(Math.max(1e-9, 0.5 * (Math.hypot(ugx, ugy) + Math.hypot(vgx, vgy))));
-    }
-    const nc = circles.length;
     const s0 = scale[0];
     const s1 = scale[1];
     const s2 = scale[2];
@@ -523,9 +526,23 @@ class GhostGrid {
     const w = full ? img.width : layer.w;
     for (let py = minY; py <= maxY; py++) {
       const oy = py + 0.5 - y0;
-      for (let px = minX; px <= maxX; px++) {
+      // the row's span inside the triangle: barycentric weights wb = ox ex1 - oy ey2 and
+      // wc = oy ex2 - ox ey1 are affine in ox; solve wb >= 0, wc >= 0, wb + wc <= 1 for ox
+      let lo = minX + 0.5 - x0;
+      let hi = maxX + 0.5 - x0;
+      const bound = (slope: number, rest: number) => {
+        // slope * ox + rest >= 0
+        if (slope > 0) lo = Math.max(lo, -rest / slope);
+        else if (slope < 0) hi = Math.min(hi, -rest / slope);
+        else if (rest < 0) hi = lo - 1;
+      };
+      bound(ex1, -oy * ey2);
+      bound(-ey1, oy * ex2);
+      bound(-(ex1 - ey1), 1 - oy * (ex2 - ey2));
+      const pxFrom = Math.max(minX, Math.ceil(lo + x0 - 0.5 - 1e-9));
+      const pxTo = Math.min(maxX, Math.floor(hi + x0 - 0.5 + 1e-9));
+      for (let px = pxFrom; px <= pxTo; px++) {
         const ox = px + 0.5 - x0;
-        // barycentric weights of corners b and c; inside when both and their sum stay in [0, 1]
         const wb = ox * ex1 - oy * ey2;
         const wc = oy * ex2 - ox * ey1;
         if (wb < 0 || wc < 0 || wb + wc > 1) continue;

@@ -12,10 +12,10 @@ export type GhostQuality = 'draft' | 'low' | 'medium' | 'high';
 
 /** Ray grid cells per side and wavelength samples for each quality. */
 export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number }>> = {
-  draft: { grid: 16, wavelengths: 3 },
-  low: { grid: 24, wavelengths: 3 },
-  medium: { grid: 32, wavelengths: 5 },
-  high: { grid: 64, wavelengths: 7 },
+  draft: { grid: 12, wavelengths: 3 },
+  low: { grid: 16, wavelengths: 3 },
+  medium: { grid: 24, wavelengths: 5 },
+  high: { grid: 48, wavelengths: 7 },
 };
 
 export interface RankedGhost extends GhostPair {

@@ -127,3 +127,34 @@ describe('straylight CLI', () => {
     expect(r.stdout).toMatch(/still \[options\] <shot>/);
   });
 });
+
+describe('straylight lens', () => {
+  it('reports the computed focal length and a ghost table, strongest first', async () => {
+    const r = await cli(['lens', 'double-gauss-50']);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toBe('');
+    expect(r.stdout).toContain('focal     50.00 mm (computed from the prescription at the d line)');
+    expect(r.stdout).toContain('ghosts    45 two-reflection paths from 10 reflecting surfaces; strongest first:');
+    const strengths = [...r.stdout.matchAll(/^\s+\d+\s+\d+ then \d+\s+\S+\s+\S+\s+(\S+)/gm)].map((m) => Number(m[1]));
+    expect(strengths.length).toBe(20);
+    for (let k = 1; k < strengths.length; k++) expect(strengths[k]).toBeLessThanOrEqual(strengths[k - 1]);
+  });
+
+  it('--json gives the same figures as data, and --plot writes a PNG', async () => {
+    const dir = tempDir();
+    const plot = path.join(dir, 'lens.png');
+    const r = await cli(['lens', 'triplet-50', '--json', '--plot', plot]);
+    expect(r.code).toBe(0);
+    const report = JSON.parse(r.stdout);
+    expect(report.focalLengthMm).toBeCloseTo(50, 3);
+    expect(report.ghosts).toHaveLength(15);
+    const png = decode(readFileSync(plot));
+    expect([png.width, png.height]).toEqual([1400, 600]);
+  });
+
+  it('an unknown lens exits 3 with a hint', async () => {
+    const r = await cli(['lens', 'zoom-35']);
+    expect(r.code).toBe(ExitCode.badInput);
+    expect(r.stderr).toMatch(/^zoom-35: not a preset lens or a lens file/);
+  });
+});
