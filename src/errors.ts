@@ -11,6 +11,8 @@ export const ExitCode = {
   badInput: 3,
   /** some frames could not be rendered or written; the others were */
   framesFailed: 4,
+  /** flash screening flagged the sequence (`flashes`, or `render --fail-on-flash`) */
+  flashes: 5,
   /** the render was interrupted (SIGINT/SIGTERM); finished frames are kept */
   interrupted: 130,
 } as const;

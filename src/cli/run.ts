@@ -13,6 +13,12 @@ import { loadLens } from '../io/load-lens.js';
 import { encodePng } from '../io/png.js';
 import { prepareLens } from '../optics/ghost-system.js';
 import { formatLensReport, lensPlot, lensReport } from '../optics/report.js';
+import { existsSync } from 'node:fs';
+import { FlashAnalyser, type FlashReport } from '../safety/flash.js';
+import { framesOnDisk, readPngLinear } from '../io/read-png.js';
+import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
+import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
+import { formatFlashReport } from './flash-report.js';
 import { Progress } from './progress.js';
 import { shotSummary } from './summary.js';
 
@@ -69,8 +75,9 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .option('--frames <A-B>', 'render only frames A to B (inside the shot\'s range)')
     .option('--out <template>', 'output path template with #### or %04d, relative to the current folder (default: the shot\'s output.path)')
     .addOption(new Option('--jobs <n>', 'worker count (frames currently render one at a time; parallel rendering is planned)').argParser(positiveInt('--jobs')))
-    .option('--quiet', 'print nothing but errors')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; quiet?: boolean }) => {
+    .option('--quiet', 'print nothing but errors and safety warnings')
+    .option('--fail-on-flash', 'exit 5 when flash screening flags the rendered frames')
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; quiet?: boolean; failOnFlash?: boolean }) => {
       const shot = loadShot(shotFile);
       const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
       let template: string | undefined;
@@ -81,10 +88,13 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       }
       const total = frames.last - frames.first + 1;
       const progress = opts.quiet ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
+      // every render screens what it makes for flashing (photosensitive seizure risk)
+      const analyser = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
       const result = await renderSequence(shot, {
         frames,
         template,
         signal: io.signal,
+        onImage: (_f, img) => analyser.addFrame(_f, img.data, 4),
         onFrame: (e) => {
           if (e.kind === 'failed') io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame} failed: ${e.error}\n`);
           progress?.frameDone(e.kind === 'written');
@@ -101,6 +111,75 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       } else if (progress) {
         io.stderr(`rendered ${total} frames to ${dest} in ${progress.elapsedSeconds().toFixed(1)} s\n`);
       }
+      if (!result.interrupted) {
+        const report = analyser.report();
+        if (report.spans.length > 0) {
+          io.stderr(`WARNING: this pass may flash dangerously for viewers with photosensitive epilepsy.\n${formatFlashReport(report, timecodeOf(shot), 'over black')}`);
+          if (opts.failOnFlash && result.failed.length === 0) setExit(ExitCode.flashes);
+        }
+      }
+    });
+
+  program
+    .command('flashes')
+    .description('screen a rendered sequence for flashing that can trigger photosensitive seizures')
+    .argument('<shot-or-sequence>', 'a shot file (screens its rendered output) or a frame template such as render/x.####.png')
+    .option('--plate <template>', 'judge the pass added over this background plate sequence too')
+    .option('--rate <fps>', 'frame rate of a sequence given by template (default 24)')
+    .option('--json', 'print the report as JSON')
+    .action((arg: string, opts: { plate?: string; rate?: string; json?: boolean }) => {
+      let template: string;
+      let frames: number[];
+      let rate: FrameRate;
+      let tc: ReturnType<typeof timecodeOf>;
+      if (/\.ya?ml$/i.test(arg)) {
+        const shot = loadShot(arg);
+        template = shot.output.template;
+        frames = [];
+        for (let f = shot.frame.first; f <= shot.frame.last; f++) frames.push(f);
+        const missing = frames.filter((f) => !existsSync(expandFramePath(template, f)));
+        if (missing.length > 0) {
+          throw new InputError(`${arg}: ${missing.length} of ${frames.length} frames are not rendered yet (first missing: ${expandFramePath(template, missing[0])}); render the shot first`);
+        }
+        rate = shot.frame.rate;
+        tc = timecodeOf(shot);
+      } else {
+        const problem = parseFrameTemplate(arg);
+        if (typeof problem === 'string') throw new UsageError(`${arg}: ${problem}`);
+        template = path.resolve(arg);
+        frames = framesOnDisk(template);
+        if (frames.length === 0) throw new InputError(`${arg}: no frames on disk match this template`);
+        const r = parseFrameRate(opts.rate === undefined ? 24 : /^\d+$/.test(opts.rate) ? Number(opts.rate) : opts.rate.includes('/') ? opts.rate : Number(opts.rate));
+        if (typeof r === 'string') throw new UsageError(`--rate: ${r}, found "${opts.rate}"`);
+        rate = r;
+        tc = { rate, dropFrame: false, startFrames: frames[0], first: frames[0] };
+      }
+      const first = readPngLinear(expandFramePath(template, frames[0]));
+      const black = new FlashAnalyser(first.width, first.height, rate);
+      const plated = opts.plate ? new FlashAnalyser(first.width, first.height, rate) : undefined;
+      for (const f of frames) {
+        const frame = f === frames[0] ? first : readPngLinear(expandFramePath(template, f));
+        black.addFrame(f, frame.rgb, 3);
+        if (plated) {
+          const plateFile = expandFramePath(path.resolve(opts.plate!), f);
+          if (!existsSync(plateFile)) throw new InputError(`--plate: no plate frame ${plateFile}`);
+          const plate = readPngLinear(plateFile);
+          if (plate.width !== frame.width || plate.height !== frame.height) {
+            throw new InputError(`--plate: ${plateFile} is ${plate.width}x${plate.height}, the pass is ${frame.width}x${frame.height}`);
+          }
+          const sum = new Float32Array(plate.rgb.length);
+          for (let i = 0; i < sum.length; i++) sum[i] = plate.rgb[i] + frame.rgb[i];
+          plated.addFrame(f, sum, 3);
+        }
+      }
+      const reports: [string, FlashReport][] = [['over black', black.report()]];
+      if (plated) reports.push(['added over the plate', plated.report()]);
+      if (opts.json) {
+        io.stdout(`${JSON.stringify(Object.fromEntries(reports.map(([k, r]) => [k === 'over black' ? 'overBlack' : 'overPlate', r])), null, 2)}\n`);
+      } else {
+        io.stdout(reports.map(([k, r]) => formatFlashReport(r, tc, k)).join('\n'));
+      }
+      if (reports.some(([, r]) => r.spans.length > 0)) setExit(ExitCode.flashes);
     });
 
   program
@@ -143,6 +222,10 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     });
 
   return program;
+}
+
+function timecodeOf(shot: ResolvedShot) {
+  return { rate: shot.frame.rate, dropFrame: shot.frame.dropFrame, startFrames: shot.frame.timecodeStartFrames, first: shot.frame.first };
 }
 
 export async function run(argv: string[], io: CliIO): Promise<number> {

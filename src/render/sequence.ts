@@ -7,6 +7,7 @@ import { OutputError } from '../errors.js';
 import { writeFileAtomic } from '../io/atomic-write.js';
 import { ensureDir } from '../io/ensure-dir.js';
 import { expandFramePath } from '../io/frame-path.js';
+import type { FloatImage } from '../raster/image.js';
 import type { ResolvedOutput, ResolvedShot } from '../shot/types.js';
 import { renderFrame } from './render-frame.js';
 
@@ -21,6 +22,8 @@ export interface SequenceOptions {
   template?: string;
   signal?: AbortSignal;
   onFrame?: (event: FrameEvent) => void;
+  /** every rendered frame's float image, in frame order (for screening as frames are made) */
+  onImage?: (frame: number, img: FloatImage) => void;
 }
 
 export type FrameEvent =
@@ -33,8 +36,7 @@ export interface SequenceResult {
   interrupted: boolean;
 }
 
-export function encodeFrame(shot: ResolvedShot, frame: number, output: ResolvedOutput = shot.output): Buffer {
-  const img = renderFrame(shot, frame);
+export function encodeFrame(shot: ResolvedShot, frame: number, output: ResolvedOutput = shot.output, img: FloatImage = renderFrame(shot, frame)): Buffer {
   return encodePng(img, {
     bitDepth: output.format === 'png8' ? 8 : 16,
     transfer: output.transfer,
@@ -63,7 +65,9 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
     const start = performance.now();
     const file = expandFramePath(template, f);
     try {
-      writeFileAtomic(file, encodeFrame(shot, f));
+      const img = renderFrame(shot, f);
+      opts.onImage?.(f, img);
+      writeFileAtomic(file, encodeFrame(shot, f, shot.output, img));
       result.written.push(f);
       opts.onFrame?.({ kind: 'written', frame: f, file, ms: performance.now() - start });
     } catch (e) {

@@ -1,0 +1,67 @@
+// Reading PNG frames back (rendered passes, plates) as display-referred linear RGB, through pngjs.
+// The transfer is taken from the file: gAMA 1.0 means linear, anything else is decoded as sRGB
+// (what straylight and most tools write). Straight alpha is applied, so a pass with alpha reads as
+// the light it adds (colour x alpha).
+
+import { readdirSync, readFileSync } from 'node:fs';
+import path from 'node:path';
+import pngjs from 'pngjs';
+import { srgbDecode } from '../colour/srgb.js';
+import { parseFrameTemplate, framePath } from './frame-path.js';
+
+const { PNG } = pngjs;
+
+export interface LinearFrame {
+  width: number;
+  height: number;
+  /** RGB, 3 floats a pixel */
+  rgb: Float32Array;
+}
+
+const srgbTable = (() => {
+  const t = new Float32Array(65536);
+  for (let i = 0; i < 65536; i++) t[i] = srgbDecode(i / 65535);
+  return t;
+})();
+
+export function readPngLinear(file: string): LinearFrame {
+  const png = PNG.sync.read(readFileSync(file), { skipRescale: true });
+  const max = png.depth === 16 ? 65535 : 255;
+  const linear = Math.abs((png.gamma || 0) - 1) < 1e-3;
+  const n = png.width * png.height;
+  const rgb = new Float32Array(n * 3);
+  const d = png.data as unknown as ArrayLike<number>;
+  for (let p = 0; p < n; p++) {
+    const a = d[p * 4 + 3] / max;
+    for (let c = 0; c < 3; c++) {
+      const code = d[p * 4 + c];
+      const v = linear ? code / max : srgbTable[Math.round((code / max) * 65535)];
+      rgb[p * 3 + c] = v * a;
+    }
+  }
+  return { width: png.width, height: png.height, rgb };
+}
+
+/** Frame numbers present on disk for a template, in order. */
+export function framesOnDisk(template: string): number[] {
+  const t = parseFrameTemplate(template);
+  if (typeof t === 'string') throw new Error(t);
+  const dir = path.dirname(template);
+  const base = path.basename(t.prefix);
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return [];
+  }
+  const re = new RegExp(`^${escape(base)}(-?\\d+)${escape(t.suffix)}$`);
+  return names
+    .map((n) => re.exec(n))
+    .filter((m): m is RegExpExecArray => m !== null && path.basename(framePath(t, Number(m[1]))) === m[0])
+    .map((m) => Number(m[1]))
+    .sort((a, b) => a - b);
+}
+
+function escape(s: string): string {
+  return s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+}
