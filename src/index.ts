@@ -7,7 +7,7 @@ export type { ResolvedShot, ResolvedLight, ResolvedFrame, ResolvedOutput, GlowSe
 export { loadShot } from './io/load-shot.js';
 export { renderFrame } from './render/render-frame.js';
 export { frameState } from './render/frame-state.js';
-export { renderSequence, encodeFrame } from './render/sequence.js';
+export { renderSequence, shardFrames } from './render/sequence.js';
 export type { SequenceOptions, SequenceResult, FrameEvent, FrameRange } from './render/sequence.js';
 export { encodePng } from './io/png.js';
 export { FloatImage } from './raster/image.js';

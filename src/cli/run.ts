@@ -8,7 +8,10 @@ import { writeFileAtomic } from '../io/atomic-write.js';
 import { loadShot } from '../io/load-shot.js';
 import { checkOutputTemplate } from '../shot/resolve.js';
 import type { ResolvedShot } from '../shot/types.js';
-import { encodeFrame, renderSequence, type FrameRange } from '../render/sequence.js';
+import { renderSequence, type FrameRange } from '../render/sequence.js';
+import { renderFrame } from '../render/render-frame.js';
+import { availableParallelism } from 'node:os';
+import type { Shard } from '../io/manifest.js';
 import { loadLens } from '../io/load-lens.js';
 import { encodePng } from '../io/png.js';
 import { prepareLens } from '../optics/ghost-system.js';
@@ -40,6 +43,15 @@ export function parseFrameRange(text: string, shot: ResolvedShot): FrameRange {
   const { first: sf, last: sl } = shot.frame;
   if (first < sf || last > sl) throw new UsageError(`--frames: ${first}-${last} lies outside the shot's range ${sf}-${sl}`);
   return { first, last };
+}
+
+/** Parse K/N with 0 <= K < N. */
+export function parseShard(text: string): Shard {
+  const m = /^\s*(\d+)\s*\/\s*(\d+)\s*$/.exec(text);
+  const k = m ? Number(m[1]) : NaN;
+  const n = m ? Number(m[2]) : NaN;
+  if (!m || n < 1 || k >= n) throw new UsageError(`--shard: expected K/N with 0 <= K < N (e.g. 0/4), found "${text}"`);
+  return { k, n };
 }
 
 function positiveInt(name: string) {
@@ -74,10 +86,13 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .argument('<shot>', 'shot file (YAML)')
     .option('--frames <A-B>', 'render only frames A to B (inside the shot\'s range)')
     .option('--out <template>', 'output path template with #### or %04d, relative to the current folder (default: the shot\'s output.path)')
-    .addOption(new Option('--jobs <n>', 'worker count (frames currently render one at a time; parallel rendering is planned)').argParser(positiveInt('--jobs')))
+    .addOption(new Option('--jobs <n>', 'worker threads (default: the available parallelism)').argParser(positiveInt('--jobs')))
+    .option('--shard <K/N>', 'render only share K of N (0-based): frames whose index from the first is K mod N')
+    .option('--force', 'render every frame, even those the manifest shows are already there')
+    .addOption(new Option('--progress <style>', 'progress on stderr: line (default) or json (one JSON object a line, for farm logs)').choices(['line', 'json']))
     .option('--quiet', 'print nothing but errors and safety warnings')
     .option('--fail-on-flash', 'exit 5 when flash screening flags the rendered frames')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; quiet?: boolean; failOnFlash?: boolean }) => {
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean }) => {
       const shot = loadShot(shotFile);
       const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
       let template: string | undefined;
@@ -86,30 +101,51 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         if (problem) throw new UsageError(`--out: ${problem}`);
         template = path.resolve(opts.out);
       }
-      const total = frames.last - frames.first + 1;
-      const progress = opts.quiet ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
+      const shard = opts.shard ? parseShard(opts.shard) : undefined;
+      const jobs = opts.jobs ?? availableParallelism();
+      let total = 0;
+      for (let f = frames.first; f <= frames.last; f++) if (!shard || (f - frames.first) % shard.n === shard.k) total++;
+      const json = opts.progress === 'json';
+      const progress = opts.quiet || json ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
+      const started = performance.now();
+      let count = 0;
+      const emit = (o: object) => io.stderr(`${JSON.stringify(o)}\n`);
       // every render screens what it makes for flashing (photosensitive seizure risk)
       const analyser = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
       const result = await renderSequence(shot, {
         frames,
         template,
+        shard,
+        jobs,
+        force: opts.force,
         signal: io.signal,
-        onImage: (_f, img) => analyser.addFrame(_f, img.data, 4),
+        onCells: (f, cells) => analyser.addCells(f, cells),
         onFrame: (e) => {
-          if (e.kind === 'failed') io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame} failed: ${e.error}\n`);
-          progress?.frameDone(e.kind === 'written');
+          count++;
+          if (json) {
+            const secs = (performance.now() - started) / 1000;
+            emit({ event: e.kind, frame: e.frame, done: count, total, fps: Number((count / Math.max(secs, 1e-6)).toFixed(3)), ...(e.kind === 'failed' ? { error: e.error } : {}) });
+          } else if (e.kind === 'failed') {
+            io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame} failed: ${e.error}\n`);
+          }
+          progress?.frameDone(e.kind !== 'failed');
         },
       });
       progress?.finish();
       const dest = template ?? shot.output.template;
+      const seconds = (performance.now() - started) / 1000;
+      if (json) {
+        emit({ event: 'summary', written: result.written.length, skipped: result.skipped.length, failed: result.failed.length, interrupted: result.interrupted, seconds: Number(seconds.toFixed(3)), manifest: result.manifest });
+      }
       if (result.interrupted) {
-        io.stderr(`interrupted: ${result.written.length} of ${total} frames written to ${dest}; finished frames are whole\n`);
+        io.stderr(`interrupted: ${result.written.length + result.skipped.length} of ${total} frames are in ${dest}; finished frames are whole and recorded in ${result.manifest}\n`);
         setExit(ExitCode.interrupted);
       } else if (result.failed.length > 0) {
-        io.stderr(`${result.failed.length} of ${total} frames failed (${result.failed.map((f) => f.frame).join(', ')}); the other ${result.written.length} were written\n`);
+        io.stderr(`${result.failed.length} of ${total} frames failed (${result.failed.map((f) => f.frame).join(', ')}); the other ${result.written.length + result.skipped.length} are in place\n`);
         setExit(ExitCode.framesFailed);
       } else if (progress) {
-        io.stderr(`rendered ${total} frames to ${dest} in ${progress.elapsedSeconds().toFixed(1)} s\n`);
+        const skipped = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
+        io.stderr(`rendered ${result.written.length} frames to ${dest}${skipped} in ${seconds.toFixed(1)} s\n`);
       }
       if (!result.interrupted) {
         const report = analyser.report();
@@ -200,7 +236,8 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .action((shotFile: string, opts: { frame: number; out: string }) => {
       const shot = loadShot(shotFile);
       if (path.extname(opts.out).toLowerCase() !== '.png') throw new UsageError(`--out: the file must end in .png, found "${opts.out}"`);
-      writeFileAtomic(path.resolve(opts.out), encodeFrame(shot, opts.frame));
+      const o = shot.output;
+      writeFileAtomic(path.resolve(opts.out), encodePng(renderFrame(shot, opts.frame), { bitDepth: o.format === 'png8' ? 8 : 16, transfer: o.transfer, alpha: o.alpha }));
     });
 
   program

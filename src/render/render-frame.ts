@@ -17,6 +17,11 @@ export interface ShotAssets {
 
 const cache = new WeakMap<ResolvedShot, ShotAssets>();
 
+/** Use assets built elsewhere (handed to a worker thread) instead of building them again. */
+export function adoptShotAssets(shot: ResolvedShot, assets: ShotAssets): void {
+  cache.set(shot, assets);
+}
+
 export function shotAssets(shot: ResolvedShot): ShotAssets {
   let a = cache.get(shot);
   if (!a) {

@@ -56,6 +56,56 @@ export function uvPrime(r: number, g: number, b: number): [number, number] {
   return [(4 * x) / d, (9 * y) / d];
 }
 
+/** A frame reduced to the analysis grid: what the state machines need, small enough to send. */
+export interface FlashCells {
+  lum: Float32Array;
+  u: Float32Array;
+  v: Float32Array;
+  red: Uint8Array;
+}
+
+/** Cell size of the analysis grid for a frame width. */
+export function cellSize(widthPx: number): number {
+  return Math.max(1, Math.ceil(widthPx / ANALYSIS_WIDTH));
+}
+
+/** Box-average a frame onto the analysis grid (clipped to display white). */
+export function reduceFrame(widthPx: number, heightPx: number, rgb: ArrayLike<number>, channels: 3 | 4): FlashCells {
+  const step = cellSize(widthPx);
+  const cellsX = Math.ceil(widthPx / step);
+  const cellsY = Math.ceil(heightPx / step);
+  const n = cellsX * cellsY;
+  const sr = new Float64Array(n);
+  const sg = new Float64Array(n);
+  const sb = new Float64Array(n);
+  const cnt = new Float64Array(n);
+  for (let y = 0; y < heightPx; y++) {
+    const row = Math.floor(y / step) * cellsX;
+    for (let x = 0; x < widthPx; x++) {
+      const c = row + Math.floor(x / step);
+      const i = (y * widthPx + x) * channels;
+      sr[c] += clip(rgb[i]);
+      sg[c] += clip(rgb[i + 1]);
+      sb[c] += clip(rgb[i + 2]);
+      cnt[c]++;
+    }
+  }
+  const out: FlashCells = { lum: new Float32Array(n), u: new Float32Array(n), v: new Float32Array(n), red: new Uint8Array(n) };
+  for (let c = 0; c < n; c++) {
+    const r = sr[c] / cnt[c];
+    const g = sg[c] / cnt[c];
+    const b = sb[c] / cnt[c];
+    out.lum[c] = 0.2126 * r + 0.7152 * g + 0.0722 * b;
+    const [u, v] = uvPrime(r, g, b);
+    out.u[c] = u;
+    out.v[c] = v;
+    const er = srgbEncode(r);
+    const sum = er + srgbEncode(g) + srgbEncode(b);
+    out.red[c] = sum > 0 && er / sum >= RED_SATURATION ? 1 : 0;
+  }
+  return out;
+}
+
 export class FlashAnalyser {
   readonly cellsX: number;
   readonly cellsY: number;
@@ -90,7 +140,7 @@ export class FlashAnalyser {
     readonly heightPx: number,
     readonly rate: FrameRate,
   ) {
-    const step = Math.max(1, Math.ceil(widthPx / ANALYSIS_WIDTH));
+    const step = cellSize(widthPx);
     this.cellW = step;
     this.cellH = step;
     this.cellsX = Math.ceil(widthPx / step);
@@ -117,35 +167,15 @@ export class FlashAnalyser {
    * RGB first). Values are clipped to [0, 1] (a display shows no more than white).
    */
   addFrame(frame: number, rgb: ArrayLike<number>, channels: 3 | 4): void {
-    const { cellsX, cellsY, cellW, cellH, widthPx, heightPx } = this;
-    const n = cellsX * cellsY;
-    const sr = new Float64Array(n);
-    const sg = new Float64Array(n);
-    const sb = new Float64Array(n);
-    const cnt = new Float64Array(n);
-    for (let y = 0; y < heightPx; y++) {
-      const row = Math.floor(y / cellH) * cellsX;
-      for (let x = 0; x < widthPx; x++) {
-        const c = row + Math.floor(x / cellW);
-        const i = (y * widthPx + x) * channels;
-        sr[c] += clip(rgb[i]);
-        sg[c] += clip(rgb[i + 1]);
-        sb[c] += clip(rgb[i + 2]);
-        cnt[c]++;
-      }
-    }
-    for (let c = 0; c < n; c++) {
-      const r = sr[c] / cnt[c];
-      const g = sg[c] / cnt[c];
-      const b = sb[c] / cnt[c];
-      this.lum[c] = 0.2126 * r + 0.7152 * g + 0.0722 * b;
-      const [u, v] = uvPrime(r, g, b);
-      this.u[c] = u;
-      this.v[c] = v;
-      const er = srgbEncode(r);
-      const sum = er + srgbEncode(g) + srgbEncode(b);
-      this.red[c] = sum > 0 && er / sum >= RED_SATURATION ? 1 : 0;
-    }
+    this.addCells(frame, reduceFrame(this.widthPx, this.heightPx, rgb, channels));
+  }
+
+  /** Add the next frame as cells already reduced by reduceFrame (e.g. in a worker thread). */
+  addCells(frame: number, cells: FlashCells): void {
+    this.lum.set(cells.lum);
+    this.u.set(cells.u);
+    this.v.set(cells.v);
+    this.red.set(cells.red);
     this.step(frame);
   }
 

@@ -61,8 +61,8 @@ describe('straylight end to end', () => {
     const out = tempDir();
     const r = straylight(['render', demo, '--frames', '1019-1021', '--out', path.join(out, 'beacon.####.png'), '--quiet']);
     expect(r).toEqual({ code: 0, stdout: '', stderr: '' });
-    expect(readdirSync(out).sort()).toEqual(['beacon.1019.png', 'beacon.1020.png', 'beacon.1021.png']);
-    for (const f of readdirSync(out)) {
+    expect(readdirSync(out).sort()).toEqual(['beacon.1019.png', 'beacon.1020.png', 'beacon.1021.png', 'beacon.manifest.json']);
+    for (const f of readdirSync(out).filter((n) => n.endsWith('.png'))) {
       const png = decode(readFileSync(path.join(out, f)));
       expect([png.width, png.height, png.depth, png.channels]).toEqual([960, 540, 16, 3]);
     }

@@ -16,7 +16,7 @@ describe('sequence rendering', () => {
     const dir = tempDir();
     const result = await renderSequence(shotIn(dir));
     expect(result.written).toEqual([1, 2, 3, 4, 5]);
-    expect(readdirSync(path.join(dir, 'out')).sort()).toEqual(['f.0001.png', 'f.0002.png', 'f.0003.png', 'f.0004.png', 'f.0005.png']);
+    expect(readdirSync(path.join(dir, 'out')).sort()).toEqual(['f.0001.png', 'f.0002.png', 'f.0003.png', 'f.0004.png', 'f.0005.png', 'f.manifest.json']);
   });
 
   it('reports a frame it cannot write and renders the others', async () => {
@@ -42,7 +42,7 @@ describe('sequence rendering', () => {
     });
     expect(result.interrupted).toBe(true);
     expect(result.written).toEqual([1, 2]);
-    expect(readdirSync(path.join(dir, 'out')).sort()).toEqual(['f.0001.png', 'f.0002.png']);
+    expect(readdirSync(path.join(dir, 'out')).sort()).toEqual(['f.0001.png', 'f.0002.png', 'f.manifest.json']);
   });
 
   it('renders a sub-range to an overriding template', async () => {

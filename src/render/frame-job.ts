@@ -1,0 +1,37 @@
+// One frame's whole job, the same in the main thread and in a worker: render, encode, write
+// atomically, and report the file's size and checksum plus the frame reduced for flash screening.
+
+import { createHash } from 'node:crypto';
+import { writeFileAtomic } from '../io/atomic-write.js';
+import { encodePng } from '../io/png.js';
+import { reduceFrame, type FlashCells } from '../safety/flash.js';
+import type { ResolvedShot } from '../shot/types.js';
+import { renderFrame } from './render-frame.js';
+
+export interface FrameJob {
+  frame: number;
+  file: string;
+}
+
+export interface FrameDone {
+  frame: number;
+  file: string;
+  bytes: number;
+  sha256: string;
+  ms: number;
+  cells: FlashCells;
+}
+
+export function sha256(data: Uint8Array): string {
+  return createHash('sha256').update(data).digest('hex');
+}
+
+export function runFrameJob(shot: ResolvedShot, job: FrameJob): FrameDone {
+  const start = performance.now();
+  const img = renderFrame(shot, job.frame);
+  const o = shot.output;
+  const png = encodePng(img, { bitDepth: o.format === 'png8' ? 8 : 16, transfer: o.transfer, alpha: o.alpha });
+  writeFileAtomic(job.file, png);
+  const cells = reduceFrame(img.width, img.height, img.data, 4);
+  return { frame: job.frame, file: job.file, bytes: png.length, sha256: sha256(png), ms: performance.now() - start, cells };
+}

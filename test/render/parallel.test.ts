@@ -1,0 +1,150 @@
+// Parallel, deterministic, resumable rendering: byte-identical frames for any worker count and any
+// shard split; resume after a hard kill; a failing frame retried once, then reported.
+
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { decode } from 'fast-png';
+import { describe, expect, it } from 'vitest';
+import { manifestPath, readManifests } from '../../src/io/manifest.js';
+import { renderSequence } from '../../src/render/sequence.js';
+import { resolveShot } from '../../src/shot/resolve.js';
+import { presetNames, presetPath } from '../../src/io/presets.js';
+import { tempDir } from '../helpers.js';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+const bin = path.join(root, 'bin', 'straylight.js');
+
+/** A small shot with a lens and a moving light, so frames differ and ghosts are drawn. */
+const SHOT = `version: 1
+frame: { width: 160, height: 90, rate: 24, first: 101, last: 112 }
+lights:
+  - name: sun
+    position: [{ frame: 101, x: 20, y: 20 }, { frame: 112, x: 150, y: 40 }]
+    intensity: 13
+    radius: 3
+lens: { preset: triplet-50, f_number: 5.6 }
+flare: { ghosts: { quality: draft } }
+output: { path: "out/f.####.png" }
+`;
+
+function shotIn(dir: string) {
+  writeFileSync(path.join(dir, 'shot.yaml'), SHOT);
+  return resolveShot(SHOT, path.join(dir, 'shot.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
+}
+
+function bytesOf(folder: string): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const f of readdirSync(folder).filter((n) => n.endsWith('.png')).sort()) out[f] = readFileSync(path.join(folder, f)).toString('base64');
+  return out;
+}
+
+describe('parallel rendering', () => {
+  it('gives byte-identical frames with 1, 2 and 4 workers', async () => {
+    const outs: Record<string, string>[] = [];
+    for (const jobs of [1, 2, 4]) {
+      const dir = tempDir();
+      const r = await renderSequence(shotIn(dir), { jobs });
+      expect(r.failed).toEqual([]);
+      expect(r.written).toHaveLength(12);
+      outs.push(bytesOf(path.join(dir, 'out')));
+    }
+    expect(Object.keys(outs[0])).toHaveLength(12);
+    expect(outs[1]).toEqual(outs[0]);
+    expect(outs[2]).toEqual(outs[0]);
+  });
+
+  it('gives the same frames when the shot is split into shards, rendered in any order', async () => {
+    const whole = tempDir();
+    await renderSequence(shotIn(whole), { jobs: 1 });
+    const split = tempDir();
+    const shot = shotIn(split);
+    for (const k of [2, 0, 1]) await renderSequence(shot, { shard: { k, n: 3 }, jobs: 2 });
+    expect(bytesOf(path.join(split, 'out'))).toEqual(bytesOf(path.join(whole, 'out')));
+    // each shard keeps its own manifest
+    expect(readManifests(path.join(split, 'out', 'f.####.png')).map((m) => path.basename(m.file))).toEqual([
+      'f.manifest.shard-0-of-3.json',
+      'f.manifest.shard-1-of-3.json',
+      'f.manifest.shard-2-of-3.json',
+    ]);
+  });
+
+  it('resumes: frames recorded in the manifest and intact on disk are kept; --force renders them again', async () => {
+    const dir = tempDir();
+    const shot = shotIn(dir);
+    await renderSequence(shot, { jobs: 2 });
+    const again = await renderSequence(shot, { jobs: 2 });
+    expect(again.skipped).toHaveLength(12);
+    expect(again.written).toEqual([]);
+    // a damaged frame is rendered again; the rest are kept
+    writeFileSync(path.join(dir, 'out', 'f.0105.png'), 'not a png');
+    const repair = await renderSequence(shot, { jobs: 2 });
+    expect(repair.written).toEqual([105]);
+    const forced = await renderSequence(shot, { jobs: 2, force: true });
+    expect(forced.written).toHaveLength(12);
+  });
+
+  it('a changed shot renders every frame again', async () => {
+    const dir = tempDir();
+    await renderSequence(shotIn(dir), { jobs: 1 });
+    const changed = resolveShot(SHOT.replace('intensity: 13', 'intensity: 12'), path.join(dir, 'shot.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
+    const r = await renderSequence(changed, { jobs: 1 });
+    expect(r.written).toHaveLength(12);
+    expect(r.skipped).toEqual([]);
+  });
+
+  it('retries a frame that fails once, then succeeds; reports one that always fails and renders the rest', async () => {
+    const dir = tempDir();
+    const shot = shotIn(dir);
+    const once = await renderSequence(shot, { jobs: 2, fault: { frame: 104, kind: 'throw', times: 'once' } });
+    expect(once.failed).toEqual([]);
+    expect(once.written).toHaveLength(12);
+    const dir2 = tempDir();
+    const always = await renderSequence(shotIn(dir2), { jobs: 2, fault: { frame: 104, kind: 'throw', times: 'always' } });
+    expect(always.failed.map((f) => f.frame)).toEqual([104]);
+    expect(always.written).toHaveLength(11);
+    expect(existsSync(path.join(dir2, 'out', 'f.0104.png'))).toBe(false);
+  });
+
+  it('survives a worker that crashes: the frame is retried on a fresh worker', async () => {
+    const dir = tempDir();
+    const r = await renderSequence(shotIn(dir), { jobs: 2, fault: { frame: 107, kind: 'crash', times: 'once' } });
+    expect(r.failed).toEqual([]);
+    expect(r.written).toHaveLength(12);
+    const dir2 = tempDir();
+    const r2 = await renderSequence(shotIn(dir2), { jobs: 2, fault: { frame: 107, kind: 'crash', times: 'always' } });
+    expect(r2.failed.map((f) => f.frame)).toEqual([107]);
+    expect(r2.failed[0].error).toBe('the worker rendering it stopped unexpectedly');
+    expect(r2.written).toHaveLength(11);
+  });
+
+  it('a render killed with SIGKILL leaves only whole frames, and a re-run completes it byte-identically', async () => {
+    const ref = tempDir();
+    await renderSequence(shotIn(ref), { jobs: 1 });
+    const dir = tempDir();
+    shotIn(dir);
+    // a bigger frame range so the kill lands mid-render
+    const child = spawn(process.execPath, [bin, 'render', path.join(dir, 'shot.yaml'), '--jobs', '2', '--quiet'], { stdio: 'ignore' });
+    const out = path.join(dir, 'out');
+    await new Promise<void>((resolve) => {
+      const poll = setInterval(() => {
+        const n = existsSync(out) ? readdirSync(out).filter((f) => /^f\.\d+\.png$/.test(f)).length : 0;
+        if (n >= 3) {
+          clearInterval(poll);
+          child.kill('SIGKILL');
+          resolve();
+        }
+      }, 5);
+    });
+    await new Promise((resolve) => child.on('exit', resolve));
+    // every file under a frame name decodes: no half-written frame
+    const named = readdirSync(out).filter((f) => /^f\.\d+\.png$/.test(f));
+    expect(named.length).toBeGreaterThan(0);
+    for (const f of named) expect(() => decode(readFileSync(path.join(out, f)))).not.toThrow();
+    const r = spawnSync(process.execPath, [bin, 'render', path.join(dir, 'shot.yaml'), '--jobs', '2', '--quiet']);
+    expect(r.status).toBe(0);
+    expect(bytesOf(out)).toEqual(bytesOf(path.join(ref, 'out')));
+    expect(existsSync(manifestPath(path.join(out, 'f.####.png')))).toBe(true);
+  });
+});
