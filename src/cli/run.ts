@@ -22,6 +22,9 @@ import { framesOnDisk, readPngLinear } from '../io/read-png.js';
 import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
 import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 import { formatFlashReport } from './flash-report.js';
+import { formatVerify, sequencesIn, verifySequence, type VerifyReport } from '../render/verify.js';
+import { shotHash } from '../io/manifest.js';
+import { statSync } from 'node:fs';
 import { Progress } from './progress.js';
 import { shotSummary } from './summary.js';
 
@@ -154,6 +157,25 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           if (opts.failOnFlash && result.failed.length === 0) setExit(ExitCode.flashes);
         }
       }
+    });
+
+  program
+    .command('verify')
+    .description('check that a rendered sequence is complete and intact against its manifest')
+    .argument('<shot-or-folder>', 'a shot file, or a folder holding rendered sequences and their manifests')
+    .option('--json', 'print the report as JSON')
+    .action((arg: string, opts: { json?: boolean }) => {
+      let reports: VerifyReport[];
+      if (existsSync(arg) && statSync(arg).isDirectory()) {
+        const templates = sequencesIn(path.resolve(arg));
+        if (templates.length === 0) throw new InputError(`${arg}: no sequence manifest in this folder`);
+        reports = templates.map((t) => verifySequence(t));
+      } else {
+        const shot = loadShot(arg);
+        reports = [verifySequence(shot.output.template, { first: shot.frame.first, last: shot.frame.last, hash: shotHash(shot) })];
+      }
+      io.stdout(opts.json ? `${JSON.stringify(reports, null, 2)}\n` : reports.map(formatVerify).join(''));
+      if (reports.some((r) => r.missing.length || r.corrupt.length || !Number.isFinite(r.first))) setExit(ExitCode.framesFailed);
     });
 
   program
