@@ -22,6 +22,8 @@ import { framesOnDisk, readPngLinear } from '../io/read-png.js';
 import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
 import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 import { formatFlashReport } from './flash-report.js';
+import { batchHtml, type BatchReport, type BatchShot } from '../render/batch-report.js';
+import { FloatImage } from '../raster/image.js';
 import { formatVerify, sequencesIn, verifySequence, type VerifyReport } from '../render/verify.js';
 import { shotHash } from '../io/manifest.js';
 import { statSync } from 'node:fs';
@@ -160,6 +162,57 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     });
 
   program
+    .command('batch')
+    .description('render many shots, going on past failures, and write a report (JSON and an HTML page)')
+    .argument('<shots...>', 'shot files')
+    .option('--report <file.json>', 'where to write the report; the HTML page goes beside it', 'straylight-report.json')
+    .addOption(new Option('--jobs <n>', 'worker threads per shot (default: the available parallelism)').argParser(positiveInt('--jobs')))
+    .option('--force', 'render every frame, even those already there')
+    .option('--quiet', 'print nothing but errors and safety warnings')
+    .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean }) => {
+      if (!opts.report.endsWith('.json')) throw new UsageError(`--report: the file must end in .json, found "${opts.report}"`);
+      const report: BatchReport = { tool: 'straylight 0.1.0', started: new Date().toISOString(), finished: '', shots: [] };
+      for (const file of shots) {
+        if (io.signal?.aborted) break;
+        const started = performance.now();
+        const entry: BatchShot = { shot: file, status: 'ok', frames: 0, written: 0, skipped: 0, failed: [], seconds: 0, flashes: [], warnings: [] };
+        report.shots.push(entry);
+        try {
+          const shot = loadShot(file);
+          entry.output = shot.output.template;
+          entry.frames = shot.frame.last - shot.frame.first + 1;
+          const analyser = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
+          const result = await renderSequence(shot, { jobs: opts.jobs ?? availableParallelism(), force: opts.force, signal: io.signal, onCells: (f, c) => analyser.addCells(f, c) });
+          entry.written = result.written.length;
+          entry.skipped = result.skipped.length;
+          entry.failed = result.failed;
+          entry.status = result.interrupted ? 'interrupted' : result.failed.length ? 'frames-failed' : 'ok';
+          // screening covers the frames rendered now; kept frames were screened when they were made
+          if (result.skipped.length === 0) entry.flashes = analyser.report().spans;
+          else if (result.written.length) entry.warnings.push('flash screening covered only the frames rendered in this run (run straylight flashes on the shot for all of them)');
+          const mid = Math.round((shot.frame.first + shot.frame.last) / 2);
+          const thumbFile = expandFramePath(shot.output.template, mid);
+          if (existsSync(thumbFile)) entry.thumbnail = thumbnail(thumbFile);
+          if (!opts.quiet) io.stderr(`${file}: ${entry.status}, ${entry.written} rendered, ${entry.skipped} kept, ${entry.failed.length} failed\n`);
+          if (entry.flashes.length) io.stderr(`WARNING: ${file} may flash dangerously for viewers with photosensitive epilepsy (frames ${entry.flashes.map((s) => `${s.firstFrame}-${s.lastFrame}`).join(', ')})\n`);
+        } catch (e) {
+          entry.status = 'bad-input';
+          entry.error = e instanceof StraylightError ? e.message : (e as Error).stack ?? String(e);
+          io.stderr(`${file}: not rendered:\n${entry.error}\n`);
+        }
+        entry.seconds = (performance.now() - started) / 1000;
+      }
+      report.finished = new Date().toISOString();
+      const json = path.resolve(opts.report);
+      writeFileAtomic(json, Buffer.from(`${JSON.stringify(report, null, 2)}\n`));
+      writeFileAtomic(json.replace(/\.json$/, '.html'), Buffer.from(batchHtml(report)));
+      const bad = report.shots.filter((s) => s.status !== 'ok').length;
+      if (!opts.quiet) io.stderr(`batch: ${report.shots.length - bad} of ${report.shots.length} shots rendered; report in ${json} and ${json.replace(/\.json$/, '.html')}\n`);
+      if (io.signal?.aborted) setExit(ExitCode.interrupted);
+      else if (bad) setExit(ExitCode.framesFailed);
+    });
+
+  program
     .command('verify')
     .description('check that a rendered sequence is complete and intact against its manifest')
     .argument('<shot-or-folder>', 'a shot file, or a folder holding rendered sequences and their manifests')
@@ -281,6 +334,23 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     });
 
   return program;
+}
+
+/** A small sRGB PNG of a rendered frame, as a data URI (nearest-pixel reduction to 320 wide). */
+function thumbnail(file: string): string {
+  const f = readPngLinear(file);
+  const w = Math.min(320, f.width);
+  const h = Math.max(1, Math.round((f.height * w) / f.width));
+  const img = new FloatImage(w, h);
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      const sx = Math.floor(((x + 0.5) * f.width) / w);
+      const sy = Math.floor(((y + 0.5) * f.height) / h);
+      const i = (sy * f.width + sx) * 3;
+      img.data.set([f.rgb[i], f.rgb[i + 1], f.rgb[i + 2], 0], (y * w + x) * 4);
+    }
+  }
+  return `data:image/png;base64,${encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }).toString('base64')}`;
 }
 
 function timecodeOf(shot: ResolvedShot) {
