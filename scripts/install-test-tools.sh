@@ -1,0 +1,14 @@
+#!/usr/bin/env bash
+# Installs the Debian tools the tests use, if they are missing:
+#   chromium   the batch report page is loaded in headless Chromium
+#   slurm-wlm  the farm round trip runs on a real single-node Slurm (started by the test itself)
+set -euo pipefail
+need=()
+command -v chromium >/dev/null 2>&1 || need+=(chromium)
+[ -x /usr/sbin/slurmctld ] || need+=(slurm-wlm)
+if [ ${#need[@]} -gt 0 ]; then
+  sudo=""
+  [ "$(id -u)" -eq 0 ] || sudo="sudo"
+  $sudo apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${need[@]}"
+fi
