@@ -1,7 +1,11 @@
 // `npm run bench`: stage costs at production sizes, as ratios measured in one run.
 // Each figure is the median of several runs after a warm-up. Later stages add their rows here.
 
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { renderSequence } from '../src/render/sequence.js';
+import { presetNames } from '../src/io/presets.js';
 import { addGhosts } from '../src/elements/ghosts.js';
 import { encodePng } from '../src/io/png.js';
 import { presetPath } from '../src/io/presets.js';
@@ -80,6 +84,51 @@ for (const quality of ['draft', 'low', 'medium', 'high'] as GhostQuality[]) {
     addGhosts(g, system, view, { xPx: 1400, yPx: 300, flux: [flux, flux, flux] }, { fNumber: 4, gain: 1, quality }, stats);
   }, quality === 'high' ? 3 : RUNS);
   rows.push([`ghosts zoom-like-35 (${system.kept} kept, ${stats.drawn} drawn), ${quality}`, `${ms(ghostMs)}  (x${(ghostMs / encode16).toFixed(2)} of encode; lens prep ${prep.toFixed(0)} ms)`]);
+}
+
+// --- the sequence renderer: frames per second with 1 and 2 workers, full flare at 1920x1080
+function flareShot(width: number, height: number, frames: number, dir: string): ResolvedShot {
+  const text = `version: 1
+frame: { width: ${width}, height: ${height}, rate: 24, first: 1, last: ${frames} }
+lights:
+  - name: sun
+    position: [{ frame: 1, x: ${width * 0.2}, y: ${height * 0.3} }, { frame: ${frames}, x: ${width * 0.8}, y: ${height * 0.25} }]
+    intensity: 13
+    radius: 8
+    colour: { kelvin: 5200 }
+lens: { preset: double-gauss-50, f_number: 4 }
+flare:
+  glow: { fraction: 0.02, size: 8, falloff: 2.6 }
+output: { path: "${dir}/f.####.png" }
+`;
+  return resolveShot(text, path.join(dir, 'bench.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
+}
+
+const seqFrames = Number(process.env.BENCH_FRAMES ?? 12);
+const fps: Record<number, number> = {};
+let startup: number[] = [];
+for (const jobs of [1, 2]) {
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  const t = performance.now();
+  const r = await renderSequence(flareShot(1920, 1080, seqFrames, dir), { jobs, force: true });
+  fps[jobs] = seqFrames / ((performance.now() - t) / 1000);
+  if (jobs === 2) startup = r.startupMs;
+  rmSync(dir, { recursive: true, force: true });
+}
+rows.push([`sequence 1920x1080, double-gauss-50 + glow, ${seqFrames} frames, --jobs 1`, `${fps[1].toFixed(2)} fps`]);
+rows.push([`sequence 1920x1080, same, --jobs 2`, `${fps[2].toFixed(2)} fps`]);
+rows.push(['ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)', (fps[2] / fps[1]).toFixed(2)]);
+rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.map((v) => `${v.toFixed(0)} ms`).join(', ')]);
+
+// --- peak memory (RSS, the whole process with its worker threads) at 3840x2160, 2 workers
+{
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  let peak = process.memoryUsage().rss;
+  const sample = setInterval(() => (peak = Math.max(peak, process.memoryUsage().rss)), 20);
+  await renderSequence(flareShot(3840, 2160, 6, dir), { jobs: 2, force: true });
+  clearInterval(sample);
+  rows.push(['peak RSS, 3840x2160 sequence, 2 workers (target < 1 GiB)', `${(peak / 2 ** 20).toFixed(0)} MiB`]);
+  rmSync(dir, { recursive: true, force: true });
 }
 
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
