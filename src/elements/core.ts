@@ -24,7 +24,7 @@ export function diskFlux(light: DiskLight): [number, number, number] {
  * Add the disk to img. Geometry is in display units: a pixel is `pixelAspect` wide and 1 high, so
  * the disk is round on the display, and a pixel's value is radiance x covered area / pixel area.
  */
-export function addDisk(img: FloatImage, light: DiskLight, pixelAspect: number): void {
+export function addDisk(img: FloatImage, light: DiskLight, pixelAspect: number, clearAt?: (xPx: number, yPx: number) => number): void {
   const { xPx, yPx, radiusPx: r, radiance } = light;
   const rx = r / pixelAspect;
   const x0 = Math.max(0, Math.floor(xPx - rx));
@@ -35,8 +35,9 @@ export function addDisk(img: FloatImage, light: DiskLight, pixelAspect: number):
   const d = img.data;
   for (let y = y0; y <= y1; y++) {
     for (let x = x0; x <= x1; x++) {
-      const cover = diskRectArea(cx, yPx, r, x * pixelAspect, y, (x + 1) * pixelAspect, y + 1) / pixelAspect;
+      let cover = diskRectArea(cx, yPx, r, x * pixelAspect, y, (x + 1) * pixelAspect, y + 1) / pixelAspect;
       if (cover <= 0) continue;
+      if (clearAt) cover *= clearAt(x + 0.5, y + 0.5);
       const i = (y * img.width + x) * 4;
       d[i] += radiance[0] * cover;
       d[i + 1] += radiance[1] * cover;

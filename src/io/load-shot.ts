@@ -1,7 +1,8 @@
 // Reading a shot file from disk: the file-system edge of shot/resolve.
 
 import { readFileSync, statSync } from 'node:fs';
-import { InputError } from '../errors.js';
+import { InputError, ShotError } from '../errors.js';
+import { checkMattes } from './matte-provider.js';
 import { resolveShot } from '../shot/resolve.js';
 import { presetNames, presetPath } from './presets.js';
 import type { ResolvedShot } from '../shot/types.js';
@@ -29,5 +30,8 @@ export function loadShot(file: string): ResolvedShot {
     throw new InputError(`${file}: not a text file (a YAML shot file was expected)`);
   }
   // messages name the shot as the user wrote it
-  return resolveShot(text, file, { readText: readTextFile, presetNames, presetPath });
+  const shot = resolveShot(text, file, { readText: readTextFile, presetNames, presetPath });
+  const problems = checkMattes(shot);
+  if (problems.length) throw new ShotError(problems);
+  return shot;
 }

@@ -2,16 +2,18 @@
 //
 // shotHash is a SHA-256 of everything that decides a frame's bytes: the resolved shot without the
 // things that only name or range the files (the shot file's path, the output path template, the
-// frame range, timecode), plus straylight's version. Any other change (a key, a light, the lens,
-// a flare setting, the output format) changes the hash, and every frame is rendered again.
+// frame range, timecode), plus straylight's version and the matte files' names, sizes and times.
+// Any other change (a key, a light, the lens, a flare setting, the output format, a matte file)
+// changes the hash, and every frame is rendered again.
 // Each shard of a farm render writes a manifest of its own, so no two processes share one file.
 
 import { createHash } from 'node:crypto';
-import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import type { ResolvedShot } from '../shot/types.js';
 import { writeFileAtomic } from './atomic-write.js';
-import { parseFrameTemplate } from './frame-path.js';
+import { expandFramePath, parseFrameTemplate } from './frame-path.js';
+import { framesOnDisk } from './read-png.js';
 
 export const TOOL_VERSION = 'straylight 0.1.0';
 
@@ -51,6 +53,22 @@ function canonical(v: unknown): string {
   return JSON.stringify(v);
 }
 
+/**
+ * The mattes' files as they are now: each frame's name, size and modification time (as make does;
+ * hashing every matte's bytes on every run would cost too much for long EXR depth sequences).
+ */
+export function mattesFingerprint(shot: ResolvedShot): string[] {
+  const out: string[] = [];
+  for (const m of shot.mattes) {
+    for (const f of framesOnDisk(m.template)) {
+      const file = expandFramePath(m.template, f);
+      const st = statSync(file);
+      out.push(`${m.name}:${f}:${st.size}:${Math.round(st.mtimeMs)}`);
+    }
+  }
+  return out;
+}
+
 export function shotHash(shot: ResolvedShot): string {
   const { file: _file, output, frame, ...rest } = shot;
   const { template: _t, ...outputRest } = output;
@@ -62,7 +80,7 @@ export function shotHash(shot: ResolvedShot): string {
   void _tc;
   void _df;
   return createHash('sha256')
-    .update(canonical({ tool: TOOL_VERSION, ...rest, output: outputRest, frame: frameRest }))
+    .update(canonical({ tool: TOOL_VERSION, ...rest, output: outputRest, frame: frameRest, matteFiles: mattesFingerprint(shot) }))
     .digest('hex');
 }
 

@@ -1,14 +1,18 @@
-// renderFrame: pure. ResolvedShot x frame number -> premultiplied linear float image of the pass.
+// renderFrame: ResolvedShot x frame number (x the shot's mattes) -> premultiplied linear float
+// image of the pass. Deterministic: the same inputs give the same pixels in any order or worker.
 // Per-shot precomputation (the prepared lens) is built once and cached on the shot object.
 
 import { addDisk, diskFlux } from '../elements/core.js';
 import { addGhosts, type GhostStats } from '../elements/ghosts.js';
 import { addGlow } from '../elements/glow.js';
+import { MatteProvider } from '../io/matte-provider.js';
 import { prepareLens, type LensSystem } from '../optics/ghost-system.js';
+import { alphaCoverage, depthCoverage, diskVisibility, sample, type CoverageLookup } from '../occlusion/visibility.js';
 import { FloatImage } from '../raster/image.js';
-import type { ResolvedShot } from '../shot/types.js';
+import type { ResolvedLight, ResolvedShot } from '../shot/types.js';
 import { evalScalar } from '../timeline/track.js';
-import { frameState } from './frame-state.js';
+import { lightState } from './frame-state.js';
+import { shutterTimes } from './shutter.js';
 
 /** What a shot needs precomputed before its frames render. */
 export interface ShotAssets {
@@ -16,6 +20,7 @@ export interface ShotAssets {
 }
 
 const cache = new WeakMap<ResolvedShot, ShotAssets>();
+const providers = new WeakMap<ResolvedShot, MatteProvider>();
 
 /** Use assets built elsewhere (handed to a worker thread) instead of building them again. */
 export function adoptShotAssets(shot: ResolvedShot, assets: ShotAssets): void {
@@ -31,32 +36,73 @@ export function shotAssets(shot: ResolvedShot): ShotAssets {
   return a;
 }
 
-export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStats): FloatImage {
+export function matteProvider(shot: ResolvedShot): MatteProvider {
+  let p = providers.get(shot);
+  if (!p) {
+    p = new MatteProvider(shot);
+    providers.set(shot, p);
+  }
+  return p;
+}
+
+/** The coverage lookups that apply to a light at time t (mattes of frame round(t)). */
+export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider): CoverageLookup[] {
+  const out: CoverageLookup[] = [];
+  const frame = Math.round(t);
+  for (const m of shot.mattes) {
+    if (!light.occludedBy.includes(m.name)) continue;
+    const img = mattes.image(m, frame);
+    if (!img) continue;
+    // a stretched matte maps onto the whole frame
+    const sx = img.width / shot.frame.widthPx;
+    const sy = img.height / shot.frame.heightPx;
+    const scaled = sx === 1 && sy === 1 ? (f: CoverageLookup) => f : (f: CoverageLookup): CoverageLookup => (x, y) => f(x * sx, y * sy);
+    if (m.kind === 'alpha') {
+      out.push(scaled(alphaCoverage(img, m.invert, light.offFrame)));
+    } else {
+      const depth = evalScalar(light.depth!, t);
+      out.push(scaled(depthCoverage((x, y) => sample(img, x, y, light.offFrame), depth, m.depth!.tolerance, light.offFrame)));
+    }
+  }
+  return out;
+}
+
+/** Visibility of a light at time t (1 without mattes). */
+export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider = matteProvider(shot)): number {
+  const s = lightState(light, t);
+  const lookups = coverageFor(shot, light, t, mattes);
+  return diskVisibility(s.xPx, s.yPx, s.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect: shot.frame.pixelAspect });
+}
+
+export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStats, mattes: MatteProvider = matteProvider(shot)): FloatImage {
   const { widthPx, heightPx, pixelAspect, opticalCentre } = shot.frame;
   const img = new FloatImage(widthPx, heightPx);
   const assets = shotAssets(shot);
-  const state = frameState(shot, frame);
-  const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, frame) : 0;
-  for (const light of state.lights) {
-    if (light.gain <= 0) continue;
-    const disk = { xPx: light.xPx, yPx: light.yPx, radiusPx: light.radiusPx, radiance: light.radiance };
-    addDisk(img, disk, pixelAspect);
-    const flux = diskFlux(disk);
-    const f = shot.glow.fraction;
-    addGlow(
-      img,
-      { xPx: light.xPx, yPx: light.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: shot.glow.sizePx, falloff: shot.glow.falloff },
-      pixelAspect,
-    );
-    if (assets.lens) {
-      addGhosts(
+  const times = shutterTimes(shot.shutter, frame, shot.seed);
+  const share = 1 / times.length;
+  for (const t of times) {
+    const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, t) : 0;
+    for (const light of shot.lights) {
+      const s = lightState(light, t);
+      if (s.gain <= 0) continue;
+      const lookups = coverageFor(shot, light, t, mattes);
+      const visibility = diskVisibility(s.xPx, s.yPx, s.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect });
+      const radiance: [number, number, number] = [s.radiance[0] * share, s.radiance[1] * share, s.radiance[2] * share];
+      const disk = { xPx: s.xPx, yPx: s.yPx, radiusPx: s.radiusPx, radiance };
+      // the disk itself is hidden pixel by pixel where the mattes cover it
+      const clearAt = lookups.length ? (x: number, y: number) => lookups.reduce((c, f) => c * (1 - f(x, y)), 1) : undefined;
+      addDisk(img, disk, pixelAspect, clearAt);
+      if (visibility <= 0) continue;
+      const flux = diskFlux(disk).map((c) => c * visibility) as [number, number, number];
+      const f = shot.glow.fraction;
+      addGlow(
         img,
-        assets.lens,
-        { widthPx, heightPx, pixelAspect, opticalCentre },
-        { xPx: light.xPx, yPx: light.yPx, flux },
-        { fNumber, gain: shot.ghosts.gain, quality: shot.ghosts.quality },
-        stats,
+        { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: shot.glow.sizePx, falloff: shot.glow.falloff },
+        pixelAspect,
       );
+      if (assets.lens) {
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain, quality: shot.ghosts.quality }, stats);
+      }
     }
   }
   return img;

@@ -15,6 +15,8 @@ import { LENS_KEYS, parseLensText, readLens } from './lens-file.js';
 import { Field, MapField, parseYamlSource } from './source.js';
 import { parseTrackCsv } from './track-csv.js';
 import type {
+  ResolvedMatte,
+  ShutterSettings,
   GhostSettings,
   GlowSettings,
   ResolvedLens,
@@ -84,13 +86,37 @@ class Resolver {
     const lights = lightsField ? this.lights(lightsField) : undefined;
     const lensField = m.get('lens');
     const lens = lensField ? this.lens(lensField) : undefined;
+    const mattesField = m.get('mattes');
+    const mattes = mattesField ? this.mattes(mattesField) : [];
+    const shutterField = m.get('shutter');
+    const shutter = shutterField ? this.shutter(shutterField) : { angleDeg: 0, samples: 1, phaseDeg: 0 };
     const flareField = m.get('flare');
     const flare = flareField ? this.flare(flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS };
     const outField = m.require('output', 'where and how frames are written');
     const output = outField ? this.output(outField) : undefined;
     m.finish();
-    if (!frame || !lights || !output || !flare || seed === undefined || (lensField && !lens)) return undefined;
-    return { version: 1, file: absFile, frame, seed, lights, glow: flare.glow, ...(lens ? { lens } : {}), ghosts: flare.ghosts, output };
+    if (!frame || !lights || !output || !flare || seed === undefined || (lensField && !lens) || !mattes || !shutter) return undefined;
+    // lights name existing mattes, and have a depth where a depth matte can cover them
+    const names = new Set(mattes.map((x) => x.name));
+    let ok = true;
+    lights.forEach((l, i) => {
+      const lf = lightsField!.list()![i];
+      const lm = new MapField(lf);
+      if (!lm.has('occluded_by')) l.occludedBy = [...names];
+      for (const n of l.occludedBy) {
+        if (!names.has(n)) {
+          ok = false;
+          lm.get('occluded_by')!.error(`no matte named "${n}" (mattes: ${[...names].join(', ') || 'none'})`);
+        }
+      }
+      const needsDepth = mattes.some((x) => x.kind === 'depth' && l.occludedBy.includes(x.name));
+      if (needsDepth && !l.depth) {
+        ok = false;
+        lf.error(`missing key "depth" (the light's distance, in the depth matte's units, for the depth matte${mattes.filter((x) => x.kind === 'depth').length > 1 ? 's' : ''})`);
+      }
+    });
+    if (!ok) return undefined;
+    return { version: 1, file: absFile, frame, seed, lights, glow: flare.glow, ...(lens ? { lens } : {}), ghosts: flare.ghosts, mattes, shutter, output };
   }
 
   frame(f: Field): ResolvedFrame | undefined {
@@ -209,8 +235,17 @@ class Resolver {
     const colour = colourField ? this.colour(colourField) : { rgb: [1, 1, 1] as [number, number, number], spec: { kelvin: 6504 } };
     const radiusField = m.get('radius');
     const radiusPx = radiusField ? radiusField.number({ min: 0, minExclusive: true, max: 10_000 }) : DEFAULT_RADIUS_PX;
+    const occField = m.get('occluded_by');
+    const occludedBy = occField ? occField.list('a list of matte names')?.map((x) => x.string('a matte name')) : [];
+    const depthField = m.get('depth');
+    const depth = depthField ? this.scalarKeys(depthField, 'value', { min: 0, max: 1e12 }) : undefined;
+    const offField = m.get('off_frame');
+    const offFrame = offField ? offField.oneOf(['clear', 'hold', 'hidden'] as const) : 'clear';
+    const limbField = m.get('limb_darkening');
+    const limbDarkening = limbField ? limbField.number({ min: 0, max: 1 }) : 0;
     m.finish();
     if (!name || !shape || !unit || !position || !intensity || !colour || radiusPx === undefined) return undefined;
+    if (!occludedBy || occludedBy.some((x) => x === undefined) || (depthField && !depth) || !offFrame || limbDarkening === undefined) return undefined;
     return {
       name,
       path: shape,
@@ -220,6 +255,10 @@ class Resolver {
       colour: colour.rgb,
       colourSpec: colour.spec,
       radiusPx,
+      occludedBy: occludedBy as string[],
+      ...(depth ? { depth } : {}),
+      offFrame,
+      limbDarkening,
     };
   }
 
@@ -420,6 +459,93 @@ class Resolver {
     const { model, diagnostics } = parseLensText(text, shown, path.basename(abs, '.yaml'));
     this.diagnostics.push(...diagnostics);
     return model;
+  }
+
+  mattes(f: Field): ResolvedMatte[] | undefined {
+    const items = f.list('a list of mattes');
+    if (!items) return undefined;
+    const seen = new Set<string>();
+    const out = items.map((item) => {
+      const m = item.map('a matte: {name, kind, path, ...}');
+      if (!m) return undefined;
+      const name = m.require('name', "the matte's name")?.string('a name');
+      if (name && seen.has(name)) m.get('name')!.error(`the name "${name}" is already used by another matte`);
+      if (name) seen.add(name);
+      const kind = m.require('kind', 'alpha (coverage) or depth')?.oneOf(['alpha', 'depth'] as const);
+      const pathField = m.require('path', 'a frame-path template of the matte images, such as mattes/fg.####.png');
+      let template: string | undefined;
+      const rel = pathField?.string('a frame-path template');
+      if (rel !== undefined) {
+        const t = parseFrameTemplate(rel);
+        if (typeof t === 'string') pathField!.error(t);
+        else template = path.resolve(this.dir, rel);
+      }
+      const ch = m.get('channel');
+      const channel = ch ? ch.oneOf(['r', 'g', 'b', 'a'] as const) : 'r';
+      const off = m.get('offset');
+      const offset = off ? off.number({ integer: true, min: -1e9, max: 1e9 }) : 0;
+      const bf = m.get('before');
+      const before = bf ? bf.oneOf(['hold', 'clear'] as const) : 'hold';
+      const af = m.get('after');
+      const after = af ? af.oneOf(['hold', 'clear'] as const) : 'hold';
+      const inv = m.get('invert');
+      if (inv && typeof inv.scalar !== 'boolean') inv.expected('true or false');
+      const rs = m.get('resize');
+      const resize = rs ? rs.oneOf(['error', 'stretch'] as const) : 'error';
+      let depth: ResolvedMatte['depth'];
+      const enc = m.get('encoding');
+      const near = m.get('near');
+      const far = m.get('far');
+      const scale = m.get('scale');
+      const tol = m.get('tolerance');
+      if (kind === 'depth') {
+        const encoding = enc ? enc.oneOf(['normalised', 'inverted', 'linear'] as const) : 'normalised';
+        const n = near ? near.number({ min: 0, max: 1e12 }) : 0;
+        const fa = far ? far.number({ min: 0, max: 1e12 }) : 1;
+        const sc = scale ? scale.number({ min: 0, minExclusive: true, max: 1e12 }) : 1;
+        const to = tol ? tol.number({ min: 0, minExclusive: true, max: 1e12 }) : 0.01 * ((fa ?? 1) - (n ?? 0) || 1);
+        if (encoding && encoding !== 'linear' && (!near || !far)) m.reportMissing(near ? 'far' : 'near', '"near" and "far" (the depths that stored 0 and 1 stand for)');
+        if (encoding && n !== undefined && fa !== undefined && sc !== undefined && to !== undefined && (encoding === 'linear' || (near && far))) {
+          if (encoding !== 'linear' && fa <= n) far!.error(`expected far beyond near (${n}), found ${fa}`);
+          else depth = { encoding, near: n, far: fa, scale: sc, tolerance: to };
+        }
+      } else {
+        for (const [k, x] of [['encoding', enc], ['near', near], ['far', far], ['scale', scale], ['tolerance', tol]] as const) {
+          if (x) x.error(`${k} is for depth mattes; this one is kind: ${kind ?? 'alpha'}`);
+        }
+      }
+      m.finish();
+      if (!name || !kind || !template || !channel || offset === undefined || !before || !after || !resize || (kind === 'depth' && !depth)) return undefined;
+      return {
+        name,
+        kind,
+        template,
+        channel,
+        offset,
+        before,
+        after,
+        invert: inv ? inv.scalar === true : false,
+        ...(depth ? { depth } : {}),
+        resize,
+        at: pathField!.loc,
+        atPath: pathField!.path,
+      } satisfies ResolvedMatte;
+    });
+    return out.every((x) => x !== undefined) ? (out as ResolvedMatte[]) : undefined;
+  }
+
+  shutter(f: Field): ShutterSettings | undefined {
+    const m = f.map('{angle, samples, phase}');
+    if (!m) return undefined;
+    const a = m.get('angle');
+    const angleDeg = a ? a.number({ min: 0, max: 360 }) : 180;
+    const sm = m.get('samples');
+    const samples = sm ? sm.number({ integer: true, min: 1, max: 256 }) : 8;
+    const ph = m.get('phase');
+    const phaseDeg = ph ? ph.number({ min: -360, max: 360 }) : angleDeg === undefined ? 0 : -angleDeg / 2;
+    m.finish();
+    if (angleDeg === undefined || samples === undefined || phaseDeg === undefined) return undefined;
+    return { angleDeg, samples, phaseDeg };
   }
 
   output(f: Field): ResolvedOutput | undefined {

@@ -1,6 +1,7 @@
 // The resolved shot: every default applied, units normalised, paths absolute. The rest of the
 // program sees only this form. Plain data: it crosses to worker threads by structured clone.
 
+import type { SourceLoc } from '../errors.js';
 import type { GhostQuality } from '../optics/ghost-system.js';
 import type { LensModel } from '../optics/lens.js';
 import type { FrameRate } from '../timeline/frame-rate.js';
@@ -27,6 +28,36 @@ export interface ResolvedFrame {
   dropFrame: boolean;
 }
 
+export interface ResolvedMatte {
+  name: string;
+  kind: 'alpha' | 'depth';
+  /** absolute frame-path template */
+  template: string;
+  channel: 'r' | 'g' | 'b' | 'a';
+  /** matte frame = shot frame + offset */
+  offset: number;
+  /** outside the matte sequence's frames: hold its first/last frame, or nothing covers */
+  before: 'hold' | 'clear';
+  after: 'hold' | 'clear';
+  invert: boolean;
+  /** depth mattes: how a stored value v in [0, 1] becomes scene depth */
+  depth?: { encoding: 'normalised' | 'inverted' | 'linear'; near: number; far: number; scale: number; tolerance: number };
+  /** a matte of another size: an error, or stretched over the frame */
+  resize: 'error' | 'stretch';
+  /** where the path was given, for errors found when reading the files */
+  at: SourceLoc;
+  atPath: string;
+}
+
+export interface ShutterSettings {
+  /** degrees of the frame interval the shutter is open */
+  angleDeg: number;
+  /** stratified time samples across the open shutter */
+  samples: number;
+  /** where it opens, degrees relative to the frame's time (default: centred, -angle/2) */
+  phaseDeg: number;
+}
+
 export interface ResolvedLight {
   name: string;
   path: PathShape;
@@ -40,6 +71,12 @@ export interface ResolvedLight {
   /** where the colour came from, for reports */
   colourSpec: { kelvin: number } | { rgb: [number, number, number] };
   radiusPx: number;
+  /** names of the mattes that can cover this light */
+  occludedBy: string[];
+  /** the light's own depth keys (scene units), for depth mattes */
+  depth?: Key<number>[];
+  offFrame: 'clear' | 'hold' | 'hidden';
+  limbDarkening: number;
 }
 
 export interface GlowSettings {
@@ -87,5 +124,7 @@ export interface ResolvedShot {
   /** absent: the shot names no lens, and no ghosts are rendered */
   lens?: ResolvedLens;
   ghosts: GhostSettings;
+  mattes: ResolvedMatte[];
+  shutter: ShutterSettings;
   output: ResolvedOutput;
 }

@@ -158,3 +158,35 @@ describe('straylight lens', () => {
     expect(r.stderr).toMatch(/^zoom-35: not a preset lens or a lens file/);
   });
 });
+
+describe('straylight visibility', () => {
+  it('lists frame, light, position, visibility and effective intensity; --plot writes a PNG', async () => {
+    const dir = tempDir();
+    const { mkdirSync } = await import('node:fs');
+    const { encodePng } = await import('../../src/io/png.js');
+    const { FloatImage } = await import('../../src/raster/image.js');
+    mkdirSync(path.join(dir, 'm'));
+    // frame 2's matte covers the left half of the frame
+    for (const f of [1, 2, 3]) {
+      const img = new FloatImage(64, 48);
+      if (f === 2) for (let y = 0; y < 48; y++) for (let x = 0; x < 32; x++) img.data.fill(1, (y * 64 + x) * 4, (y * 64 + x) * 4 + 3);
+      writeFileSync(path.join(dir, 'm', `c.${f}.png`), encodePng(img, { bitDepth: 8, transfer: 'linear', alpha: 'none' }));
+    }
+    const f = path.join(dir, 'shot.yaml');
+    writeFileSync(f, MINIMAL_SHOT.replace('output:', 'mattes: [{ name: c, kind: alpha, path: m/c.#.png }]\noutput:'));
+    const plot = path.join(dir, 'vis.png');
+    const r = await cli(['visibility', f, '--plot', plot]);
+    expect(r.code).toBe(0);
+    const rows = r.stdout.trim().split('\n');
+    expect(rows[0]).toBe('frame,light,x,y,visibility,effective_intensity');
+    const vis = rows.slice(1).map((l) => Number(l.split(',')[4]));
+    // an edge through the centre hides half the disk (within the 128-point pattern's 0.02)
+    expect(vis[0]).toBe(1);
+    expect(vis[1]).toBeCloseTo(0.5, 2);
+    expect(vis[2]).toBe(1);
+    const [frame, light, x, y, , eff] = rows[2].split(',');
+    expect([frame, light, x, y]).toEqual(['2', 'sun', '32.00', '24.00']);
+    expect(Number(eff)).toBeCloseTo(vis[1] * 1, 4); // intensity 0 stops: gain 1
+    expect(decode(readFileSync(plot)).width).toBe(1200);
+  });
+});

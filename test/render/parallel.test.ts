@@ -148,3 +148,26 @@ describe('parallel rendering', () => {
     expect(existsSync(manifestPath(path.join(out, 'f.####.png')))).toBe(true);
   });
 });
+
+describe('resume and mattes', () => {
+  it('a changed matte file renders the frames again', async () => {
+    const { mkdirSync, utimesSync } = await import('node:fs');
+    const { encodePng } = await import('../../src/io/png.js');
+    const { FloatImage } = await import('../../src/raster/image.js');
+    const dir = tempDir();
+    mkdirSync(path.join(dir, 'm'));
+    const matte = path.join(dir, 'm', 'c.0001.png');
+    writeFileSync(matte, encodePng(new FloatImage(32, 18), { bitDepth: 8, transfer: 'linear', alpha: 'none' }));
+    const text = `version: 1
+frame: { width: 32, height: 18, rate: 24, first: 1, last: 2 }
+lights: [{ name: a, position: [16, 9], intensity: 1 }]
+mattes: [{ name: c, kind: alpha, path: m/c.####.png }]
+output: { path: "out/f.####.png" }
+`;
+    const shot = () => resolveShot(text, path.join(dir, 'shot.yaml'), { readText: () => '' });
+    expect((await renderSequence(shot())).written).toEqual([1, 2]);
+    expect((await renderSequence(shot())).skipped).toEqual([1, 2]);
+    utimesSync(matte, new Date(), new Date(Date.now() + 5000));
+    expect((await renderSequence(shot())).written).toEqual([1, 2]);
+  });
+});
