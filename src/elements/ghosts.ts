@@ -72,6 +72,23 @@ interface Layer {
   used: boolean;
 }
 
+// low-resolution layers, kept per thread and cleared after use (no fresh memory each call)
+let layerCache: { w: number; h: number; layers: Layer[] } | undefined;
+function layersFor(width: number, height: number): Layer[] {
+  if (!layerCache || layerCache.w !== width || layerCache.h !== height) {
+    layerCache = {
+      w: width,
+      h: height,
+      layers: [1, 2, 4].map((scale) => {
+        const w = Math.ceil(width / scale);
+        const h = Math.ceil(height / scale);
+        return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false };
+      }),
+    };
+  }
+  return layerCache.layers;
+}
+
 export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, light: GhostLight, settings: GhostFrameSettings, stats?: GhostStats): void {
   const lum = 0.2126 * light.flux[0] + 0.7152 * light.flux[1] + 0.0722 * light.flux[2];
   if (lum <= 0 || settings.gain <= 0) return;
@@ -85,11 +102,7 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   const mm2PerPx = 1 / (pxX * pxY);
   const shape = irisShape(system.lens.iris);
   const multiRes = settings.quality !== 'high';
-  const layers: Layer[] = [1, 2, 4].map((scale) => {
-    const w = Math.ceil(img.width / scale);
-    const h = Math.ceil(img.height / scale);
-    return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false };
-  });
+  const layers = layersFor(img.width, img.height);
   const centre = Math.floor(system.samples.length / 2);
   // a coarse grid finds each ghost's ray box; the fine grid traces and draws it
   const coarse = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
@@ -120,7 +133,13 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
     }
     if (stats) stats.drawn++;
   }
-  for (const layer of layers) if (layer.scale > 1 && layer.used) upsampleAdd(img, layer);
+  for (const layer of layers) {
+    if (layer.scale > 1 && layer.used) {
+      upsampleAdd(img, layer);
+      layer.data.fill(0);
+    }
+    layer.used = false;
+  }
 }
 
 interface Box {

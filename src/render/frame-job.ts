@@ -5,6 +5,7 @@ import { createHash } from 'node:crypto';
 import { writeFileAtomic } from '../io/atomic-write.js';
 import { encodePng } from '../io/png.js';
 import { reduceFrame, type FlashCells } from '../safety/flash.js';
+import type { FloatImage } from '../raster/image.js';
 import type { ResolvedShot } from '../shot/types.js';
 import { renderFrame } from './render-frame.js';
 
@@ -26,9 +27,13 @@ export function sha256(data: Uint8Array): string {
   return createHash('sha256').update(data).digest('hex');
 }
 
+/** One image per thread, reused frame after frame (the job is done with it before the next). */
+let scratch: FloatImage | undefined;
+
 export function runFrameJob(shot: ResolvedShot, job: FrameJob): FrameDone {
   const start = performance.now();
-  const img = renderFrame(shot, job.frame);
+  const img = renderFrame(shot, job.frame, undefined, undefined, scratch);
+  scratch = img;
   const o = shot.output;
   const png = encodePng(img, { bitDepth: o.format === 'png8' ? 8 : 16, transfer: o.transfer, alpha: o.alpha });
   writeFileAtomic(job.file, png);

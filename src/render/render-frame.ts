@@ -74,9 +74,19 @@ export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: num
   return diskVisibility(s.xPx, s.yPx, s.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect: shot.frame.pixelAspect });
 }
 
-export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStats, mattes: MatteProvider = matteProvider(shot)): FloatImage {
+/**
+ * Render a frame. `target`, when given, is cleared and drawn into (a caller that renders frame
+ * after frame reuses one image instead of faulting in fresh memory every frame).
+ */
+export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStats, mattes: MatteProvider = matteProvider(shot), target?: FloatImage): FloatImage {
   const { widthPx, heightPx, pixelAspect, opticalCentre } = shot.frame;
-  const img = new FloatImage(widthPx, heightPx);
+  let img: FloatImage;
+  if (target && target.width === widthPx && target.height === heightPx) {
+    img = target;
+    img.data.fill(0);
+  } else {
+    img = new FloatImage(widthPx, heightPx);
+  }
   const assets = shotAssets(shot);
   const times = shutterTimes(shot.shutter, frame, shot.seed);
   const share = 1 / times.length;
