@@ -92,7 +92,7 @@ function flareShot(width: number, height: number, frames: number, dir: string): 
 frame: { width: ${width}, height: ${height}, rate: 24, first: 1, last: ${frames} }
 lights:
   - name: sun
-    position: [{ frame: 1, x: ${width * 0.2}, y: ${height * 0.3} }, { frame: ${frames}, x: ${width * 0.8}, y: ${height * 0.25} }]
+    position: [{ frame: 1, x: ${width * 0.2}, y: ${height * 0.3} }, { frame: ${Math.max(2, frames)}, x: ${width * 0.8}, y: ${height * 0.25} }]
     intensity: 13
     radius: 8
     colour: { kelvin: 5200 }
@@ -128,6 +128,25 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   await renderSequence(flareShot(3840, 2160, 6, dir), { jobs: 2, force: true });
   clearInterval(sample);
   rows.push(['peak RSS, 3840x2160 sequence, 2 workers (target < 1 GiB)', `${(peak / 2 ** 20).toFixed(0)} MiB`]);
+  rmSync(dir, { recursive: true, force: true });
+}
+
+// --- occlusion: visibility per light per frame (128 points, one alpha matte), and the shutter
+{
+  const { diskVisibility, alphaCoverage } = await import('../src/occlusion/visibility.js');
+  const matte = { width: 1920, height: 1080, values: new Float32Array(1920 * 1080) };
+  for (let i = 0; i < matte.values.length; i++) matte.values[i] = (i % 1920) > 960 ? 1 : 0;
+  const lookups = [alphaCoverage(matte, false, 'clear')];
+  const per = time(() => {
+    for (let k = 0; k < 1000; k++) diskVisibility(950 + (k % 20), 540, 12, lookups);
+  });
+  rows.push(['visibility, one light, 128 points, one matte (per frame)', `${((per / 1000) * 1000).toFixed(1)} us`]);
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  const one = flareShot(960, 540, 1, dir);
+  const eight = { ...one, shutter: { angleDeg: 180, samples: 8, phaseDeg: -90 } };
+  const t1 = time(() => renderFrame(one, 1), 3);
+  const t8 = time(() => renderFrame(eight, 1), 3);
+  rows.push(['frame 960x540 with the lens, 8 shutter samples vs 1', `${ms(t8)} vs ${ms(t1)} (x${(t8 / t1).toFixed(2)})`]);
   rmSync(dir, { recursive: true, force: true });
 }
 
