@@ -18,6 +18,15 @@ afterEach(() => {
   while (made.length) rmSync(made.pop()!, { recursive: true, force: true });
 });
 
+/** Run the CLI in-process and collect what it prints. */
+export async function cli(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
+  const { run } = await import('../src/cli/run.js');
+  let stdout = '';
+  let stderr = '';
+  const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
+  return { code, stdout, stderr };
+}
+
 export function writeFiles(dir: string, files: Record<string, string>): void {
   for (const [name, text] of Object.entries(files)) writeFileSync(path.join(dir, name), text);
 }

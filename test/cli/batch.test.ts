@@ -7,16 +7,9 @@ import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium } from 'playwright-core';
 import { describe, expect, it } from 'vitest';
-import { run } from '../../src/cli/run.js';
 import { ExitCode } from '../../src/errors.js';
-import { tempDir } from '../helpers.js';
+import { cli, tempDir } from '../helpers.js';
 
-async function cli(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
-  return { code, stdout, stderr };
-}
 
 const good = (name: string) => `version: 1
 frame: { width: 96, height: 54, rate: 24, first: 1, last: 6 }

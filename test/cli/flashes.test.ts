@@ -4,18 +4,11 @@
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { run } from '../../src/cli/run.js';
 import { ExitCode } from '../../src/errors.js';
 import { encodePng } from '../../src/io/png.js';
 import { FloatImage } from '../../src/raster/image.js';
-import { tempDir } from '../helpers.js';
+import { cli, tempDir } from '../helpers.js';
 
-async function cli(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
-  return { code, stdout, stderr };
-}
 
 /** A big light switching between two levels (linear) every 3 frames: 4 Hz at 24 fps. */
 function strobeShot(dir: string, high: number, low: number): string {

@@ -5,16 +5,9 @@ import path from 'node:path';
 import { decode } from 'fast-png';
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { run } from '../../src/cli/run.js';
 import { ExitCode } from '../../src/errors.js';
-import { MINIMAL_SHOT, tempDir } from '../helpers.js';
+import { MINIMAL_SHOT, cli, tempDir } from '../helpers.js';
 
-async function cli(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
-  return { code, stdout, stderr };
-}
 
 function shotFile(text = MINIMAL_SHOT): string {
   const dir = tempDir();

@@ -3,16 +3,9 @@
 import { readFileSync, rmSync, truncateSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { run } from '../../src/cli/run.js';
 import { ExitCode } from '../../src/errors.js';
-import { tempDir } from '../helpers.js';
+import { cli, tempDir } from '../helpers.js';
 
-async function cli(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
-  return { code, stdout, stderr };
-}
 
 const SHOT = `version: 1
 frame: { width: 64, height: 36, rate: 24, first: 1, last: 8 }
