@@ -1,0 +1,137 @@
+// The iris's diffraction pattern (the starburst): Fraunhofer diffraction, |Fourier transform of the
+// pupil|^2 (Goodman, "Introduction to Fourier Optics"; for glare rendering Kakimoto et al. 2005,
+// Ritschel et al. 2009). The iris mask is supersampled (4 x 4 per cell, or straight blade edges
+// alias into false spikes), transformed on an N x N grid with a pupil D cells across (fft.js), and
+// each wavelength's copy is magnified by lambda / lambda_ref at equal energy and weighted into RGB.
+// On the sensor one bin is lambda N_f D / N long, so stopping down enlarges the pattern.
+
+import FFT from 'fft.js';
+import { irisMargin, irisShape } from './iris.js';
+import type { Iris } from './lens.js';
+import { spectralSamples } from './spectral.js';
+
+export const REFERENCE_NM = 550;
+
+/** In-place 2-D FFT of a complex n x n field (separate real and imaginary planes), unnormalised. */
+export function fft2(re: Float64Array, im: Float64Array, n: number): void {
+  const f = new FFT(n);
+  const input = f.createComplexArray() as number[];
+  const output = f.createComplexArray() as number[];
+  const pass = (get: (k: number) => number, put: (k: number) => number) => {
+    for (let line = 0; line < n; line++) {
+      for (let k = 0; k < n; k++) {
+        const idx = get(line * n + k);
+        input[2 * k] = re[idx];
+        input[2 * k + 1] = im[idx];
+      }
+      f.transform(output, input);
+      for (let k = 0; k < n; k++) {
+        const idx = put(line * n + k);
+        re[idx] = output[2 * k];
+        im[idx] = output[2 * k + 1];
+      }
+    }
+  };
+  // rows: element (row, col) at row * n + col; columns: read column `line` as a row
+  pass((i) => i, (i) => i);
+  const col = (i: number) => (i % n) * n + Math.floor(i / n);
+  pass(col, col);
+}
+
+/** The iris's open fraction in each cell of an n x n grid with a pupil `pupilCells` across. */
+export function irisMask(iris: Iris, n: number, pupilCells: number, supersample = 4): Float64Array {
+  const shape = irisShape(iris);
+  const mask = new Float64Array(n * n);
+  const c = n / 2;
+  const r = pupilCells / 2;
+  const inv = 1 / (supersample * supersample);
+  for (let y = 0; y < n; y++) {
+    for (let x = 0; x < n; x++) {
+      const dx = (x + 0.5 - c) / r;
+      const dy = (y + 0.5 - c) / r;
+      if (dx * dx + dy * dy > 1.2) continue;
+      let open = 0;
+      for (let sy = 0; sy < supersample; sy++) {
+        for (let sx = 0; sx < supersample; sx++) {
+          const u = (x + (sx + 0.5) / supersample - c) / r;
+          const v = (y + (sy + 0.5) / supersample - c) / r;
+          if (irisMargin(shape, u, v) >= 0) open++;
+        }
+      }
+      mask[y * n + x] = open * inv;
+    }
+  }
+  return mask;
+}
+
+/** |F|^2 of the mask, centred (zero frequency at n/2, n/2). */
+export function powerSpectrum(mask: Float64Array, n: number): Float64Array {
+  const re = Float64Array.from(mask);
+  const im = new Float64Array(n * n);
+  fft2(re, im, n);
+  const p = new Float64Array(n * n);
+  const h = n / 2;
+  for (let y = 0; y < n; y++) {
+    for (let x = 0; x < n; x++) {
+      const i = y * n + x;
+      p[((y + h) % n) * n + ((x + h) % n)] = re[i] * re[i] + im[i] * im[i];
+    }
+  }
+  return p;
+}
+
+export interface StarburstKernel {
+  n: number;
+  /** pupil diameter in grid cells */
+  pupilCells: number;
+  /** RGB, n x n, each channel summing to 1 (bins at the reference wavelength's scale) */
+  rgb: Float32Array;
+}
+
+/** Bilinear sample of an n x n plane at bin coordinates (x, y) centred on n/2; 0 outside. */
+function bilinear(p: Float64Array, n: number, x: number, y: number): number {
+  const fx = x - 0.5;
+  const fy = y - 0.5;
+  const x0 = Math.floor(fx);
+  const y0 = Math.floor(fy);
+  if (x0 < 0 || y0 < 0 || x0 + 1 >= n || y0 + 1 >= n) return 0;
+  const tx = fx - x0;
+  const ty = fy - y0;
+  const a = p[y0 * n + x0] + (p[y0 * n + x0 + 1] - p[y0 * n + x0]) * tx;
+  const b = p[(y0 + 1) * n + x0] + (p[(y0 + 1) * n + x0 + 1] - p[(y0 + 1) * n + x0]) * tx;
+  return a + (b - a) * ty;
+}
+
+export function starburstKernel(iris: Iris, opts: { n?: number; pupilCells?: number; wavelengths?: number } = {}): StarburstKernel {
+  const n = opts.n ?? 512;
+  const pupilCells = opts.pupilCells ?? n / 8;
+  const p = powerSpectrum(irisMask(iris, n, pupilCells), n);
+  const rgb = new Float32Array(n * n * 3);
+  const h = n / 2;
+  for (const s of spectralSamples(opts.wavelengths ?? 9)) {
+    // this wavelength's pattern is the reference one magnified by lambda / lambda_ref
+    const m = s.nm / REFERENCE_NM;
+    const plane = new Float64Array(n * n);
+    let sum = 0;
+    for (let y = 0; y < n; y++) {
+      for (let x = 0; x < n; x++) {
+        const v = bilinear(p, n, h + (x + 0.5 - h) / m, h + (y + 0.5 - h) / m);
+        plane[y * n + x] = v;
+        sum += v;
+      }
+    }
+    if (sum <= 0) continue;
+    for (let i = 0; i < n * n; i++) {
+      const e = plane[i] / sum;
+      rgb[i * 3] += e * s.rgb[0];
+      rgb[i * 3 + 1] += e * s.rgb[1];
+      rgb[i * 3 + 2] += e * s.rgb[2];
+    }
+  }
+  return { n, pupilCells, rgb };
+}
+
+/** Size of one kernel bin on the sensor, mm: lambda_ref N_f D / N. */
+export function binSizeMm(kernel: StarburstKernel, fNumber: number): number {
+  return REFERENCE_NM * 1e-6 * fNumber * (kernel.pupilCells / kernel.n);
+}
