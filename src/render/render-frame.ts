@@ -5,6 +5,10 @@
 import { addDisk, diskFlux } from '../elements/core.js';
 import { addGhosts, type GhostStats } from '../elements/ghosts.js';
 import { addGlow } from '../elements/glow.js';
+import { addStarburst } from '../elements/starburst.js';
+import { addStreak, addVeil } from '../elements/streak.js';
+import { addDust, dustTexture } from '../elements/dust.js';
+import { binSizeMm, starburstKernel, type StarburstKernel } from '../optics/diffraction.js';
 import { MatteProvider } from '../io/matte-provider.js';
 import { prepareLens, type LensSystem } from '../optics/ghost-system.js';
 import { alphaCoverage, depthCoverage, diskVisibility, sample, type CoverageLookup } from '../occlusion/visibility.js';
@@ -17,7 +21,14 @@ import { shutterTimes } from './shutter.js';
 /** What a shot needs precomputed before its frames render. */
 export interface ShotAssets {
   lens?: LensSystem;
+  /** the iris's diffraction kernel (one per shot: one iris) */
+  starburst?: StarburstKernel;
+  /** the lens-dirt texture at frame size */
+  dust?: Float32Array;
 }
+
+/** Without a lens, the starburst and its scale come from a plain 6-blade 50 mm at f/8 on 36 mm. */
+const DEFAULT_IRIS = { blades: 6, rotationDeg: 0, roundness: 0 };
 
 const cache = new WeakMap<ResolvedShot, ShotAssets>();
 const providers = new WeakMap<ResolvedShot, MatteProvider>();
@@ -31,6 +42,8 @@ export function shotAssets(shot: ResolvedShot): ShotAssets {
   let a = cache.get(shot);
   if (!a) {
     a = shot.lens && shot.ghosts.enabled ? { lens: prepareLens(shot.lens.model, shot.ghosts.quality, shot.ghosts.threshold) } : {};
+    if (shot.starburst.fraction > 0) a.starburst = starburstKernel(shot.lens?.model.iris ?? DEFAULT_IRIS);
+    if (shot.dust.fraction > 0) a.dust = dustTexture(shot.frame.widthPx, shot.frame.heightPx, shot.dust.seed, shot.dust.density);
     cache.set(shot, a);
   }
   return a;
@@ -90,8 +103,10 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
   const assets = shotAssets(shot);
   const times = shutterTimes(shot.shutter, frame, shot.seed);
   const share = 1 / times.length;
+  const sensorMm = shot.lens?.model.sensorWidthMm ?? 36;
   for (const t of times) {
-    const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, t) : 0;
+    const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, t) : 8;
+    const veil = [0, 0, 0];
     for (const light of shot.lights) {
       const s = lightState(light, t);
       if (s.gain <= 0) continue;
@@ -113,7 +128,20 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (assets.lens) {
         addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain, quality: shot.ghosts.quality }, stats);
       }
+      if (assets.starburst) {
+        const k = shot.starburst.fraction;
+        const binPx = (binSizeMm(assets.starburst, fNumber) / (sensorMm / widthPx)) * shot.starburst.size;
+        addStarburst(img, assets.starburst, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k, flux[1] * k, flux[2] * k], binPx }, pixelAspect);
+      }
+      if (shot.streak.fraction > 0) {
+        const k = shot.streak.fraction;
+        const tint = shot.streak.tint;
+        addStreak(img, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k * tint[0], flux[1] * k * tint[1], flux[2] * k * tint[2]], lengthPx: shot.streak.lengthPx, thicknessPx: shot.streak.thicknessPx }, pixelAspect);
+      }
+      if (assets.dust) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, shot.dust.fraction, shot.dust.reachPx);
+      for (let c = 0; c < 3; c++) veil[c] += flux[c] * shot.veil.fraction;
     }
+    if (veil[0] > 0 || veil[1] > 0 || veil[2] > 0) addVeil(img, veil as [number, number, number], pixelAspect);
   }
   return img;
 }

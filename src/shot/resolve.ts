@@ -15,6 +15,9 @@ import { LENS_KEYS, parseLensText, readLens } from './lens-file.js';
 import { Field, MapField, parseYamlSource } from './source.js';
 import { parseTrackCsv } from './track-csv.js';
 import type {
+  DustSettings,
+  StarburstSettings,
+  StreakSettings,
   ResolvedMatte,
   ShutterSettings,
   GhostSettings,
@@ -36,6 +39,9 @@ export const MAX_COORD_PX = 1_000_000;
 
 export const DEFAULT_GLOW: GlowSettings = { fraction: 0.04, sizePx: 6, falloff: 3 };
 export const DEFAULT_GHOSTS: GhostSettings = { enabled: true, gain: 1, quality: 'medium', threshold: 1e-6 };
+export const DEFAULT_STARBURST: StarburstSettings = { fraction: 0.05, size: 1 };
+export const DEFAULT_STREAK: StreakSettings = { fraction: 0, lengthPx: 200, thicknessPx: 1, tint: [1, 1, 1] };
+export const DEFAULT_DUST: DustSettings = { fraction: 0, density: 1, reachPx: 300, seed: 0 };
 export const DEFAULT_RADIUS_PX = 4;
 
 /** What the resolver may read besides the shot itself (track CSVs); injected so shot/ does no I/O. */
@@ -91,7 +97,7 @@ class Resolver {
     const shutterField = m.get('shutter');
     const shutter = shutterField ? this.shutter(shutterField) : { angleDeg: 0, samples: 1, phaseDeg: 0 };
     const flareField = m.get('flare');
-    const flare = flareField ? this.flare(flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS };
+    const flare = flareField ? this.flare(flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS, starburst: DEFAULT_STARBURST, veil: { fraction: 0 }, streak: DEFAULT_STREAK, streakGiven: false, dust: DEFAULT_DUST, dustSeedGiven: false };
     const outField = m.require('output', 'where and how frames are written');
     const output = outField ? this.output(outField) : undefined;
     m.finish();
@@ -116,7 +122,25 @@ class Resolver {
       }
     });
     if (!ok) return undefined;
-    return { version: 1, file: absFile, frame, seed, lights, glow: flare.glow, ...(lens ? { lens } : {}), ghosts: flare.ghosts, mattes, shutter, output };
+    // an anamorphic lens streaks unless the shot says otherwise
+    const streak = flare.streakGiven || !lens || lens.model.squeeze === 1 ? flare.streak : { ...flare.streak, fraction: 0.02 };
+    return {
+      version: 1,
+      file: absFile,
+      frame,
+      seed,
+      lights,
+      glow: flare.glow,
+      ...(lens ? { lens } : {}),
+      ghosts: flare.ghosts,
+      starburst: flare.starburst,
+      veil: flare.veil,
+      streak,
+      dust: { ...flare.dust, seed: flare.dustSeedGiven ? flare.dust.seed : seed },
+      mattes,
+      shutter,
+      output,
+    };
   }
 
   frame(f: Field): ResolvedFrame | undefined {
@@ -363,15 +387,67 @@ class Resolver {
     return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
   }
 
-  flare(f: Field): { glow: GlowSettings; ghosts: GhostSettings } | undefined {
+  flare(f: Field) {
     const m = f.map();
     if (!m) return undefined;
     const g = m.get('glow');
     const gh = m.get('ghosts');
+    const sb = m.get('starburst');
+    const vf = m.get('veil');
+    const st = m.get('streak');
+    const du = m.get('dust');
     m.finish();
     const glow = g ? this.glow(g) : DEFAULT_GLOW;
     const ghosts = gh ? this.ghosts(gh) : DEFAULT_GHOSTS;
-    return glow && ghosts ? { glow, ghosts } : undefined;
+    const num = (mf: MapField, key: string, rule: Parameters<Field['number']>[0], dflt: number) => {
+      const x = mf.get(key);
+      return x ? x.number(rule) : dflt;
+    };
+    let starburst: StarburstSettings | undefined = DEFAULT_STARBURST;
+    if (sb) {
+      const sm = sb.map('{fraction, size}');
+      starburst = sm ? { fraction: num(sm, 'fraction', { min: 0, max: 1 }, DEFAULT_STARBURST.fraction)!, size: num(sm, 'size', { min: 0.01, max: 1000 }, 1)! } : undefined;
+      sm?.finish();
+      if (starburst && (Number.isNaN(starburst.fraction) || starburst.fraction === undefined || starburst.size === undefined)) starburst = undefined;
+    }
+    let veil: { fraction: number } | undefined = { fraction: 0 };
+    if (vf) {
+      const vm = vf.map('{fraction}');
+      const fr = vm ? num(vm, 'fraction', { min: 0, max: 1 }, 0) : undefined;
+      vm?.finish();
+      veil = fr === undefined ? undefined : { fraction: fr };
+    }
+    let streak: StreakSettings | undefined = DEFAULT_STREAK;
+    if (st) {
+      const sm = st.map('{fraction, length, thickness, colour}');
+      if (!sm) streak = undefined;
+      else {
+        const fraction = num(sm, 'fraction', { min: 0, max: 1 }, 0.02);
+        const lengthPx = num(sm, 'length', { min: 1, max: 100_000 }, DEFAULT_STREAK.lengthPx);
+        const thicknessPx = num(sm, 'thickness', { min: 0.2, max: 100 }, DEFAULT_STREAK.thicknessPx);
+        const cf = sm.get('colour');
+        const colour = cf ? this.colour(cf) : { rgb: [1, 1, 1] as [number, number, number], spec: { kelvin: 6504 } };
+        sm.finish();
+        streak = fraction === undefined || lengthPx === undefined || thicknessPx === undefined || !colour ? undefined : { fraction, lengthPx, thicknessPx, tint: colour.rgb };
+      }
+    }
+    let dust: DustSettings | undefined = DEFAULT_DUST;
+    let dustSeedGiven = false;
+    if (du) {
+      const dm = du.map('{fraction, density, reach, seed}');
+      if (!dm) dust = undefined;
+      else {
+        dustSeedGiven = dm.has('seed');
+        const fraction = num(dm, 'fraction', { min: 0, max: 1 }, 0.01);
+        const density = num(dm, 'density', { min: 0, max: 100 }, 1);
+        const reachPx = num(dm, 'reach', { min: 1, max: 100_000 }, 300);
+        const seed = num(dm, 'seed', { integer: true, min: 0, max: 2 ** 32 - 1 }, 0);
+        dm.finish();
+        dust = fraction === undefined || density === undefined || reachPx === undefined || seed === undefined ? undefined : { fraction, density, reachPx, seed };
+      }
+    }
+    if (!glow || !ghosts || !starburst || !veil || !streak || !dust) return undefined;
+    return { glow, ghosts, starburst, veil, streak, streakGiven: Boolean(st), dust, dustSeedGiven };
   }
 
   glow(g: Field): GlowSettings | undefined {

@@ -88,6 +88,28 @@ export interface GlowSettings {
   falloff: number;
 }
 
+export interface StarburstSettings {
+  /** fraction of the light's flux in the diffraction pattern (0: off) */
+  fraction: number;
+  /** artistic size on top of the physical scale (1 = physical) */
+  size: number;
+}
+
+export interface StreakSettings {
+  fraction: number;
+  lengthPx: number;
+  thicknessPx: number;
+  /** linear RGB tint, unit luminance */
+  tint: [number, number, number];
+}
+
+export interface DustSettings {
+  fraction: number;
+  density: number;
+  reachPx: number;
+  seed: number;
+}
+
 export interface GhostSettings {
   enabled: boolean;
   /** artistic gain on top of the physical brightness */
@@ -124,6 +146,11 @@ export interface ResolvedShot {
   /** absent: the shot names no lens, and no ghosts are rendered */
   lens?: ResolvedLens;
   ghosts: GhostSettings;
+  starburst: StarburstSettings;
+  /** the veil: fraction of all visible flux lifted uniformly over the frame */
+  veil: { fraction: number };
+  streak: StreakSettings;
+  dust: DustSettings;
   mattes: ResolvedMatte[];
   shutter: ShutterSettings;
   output: ResolvedOutput;
