@@ -108,6 +108,15 @@ export function starburstKernel(iris: Iris, opts: { n?: number; pupilCells?: num
   const p = powerSpectrum(irisMask(iris, n, pupilCells), n);
   const rgb = new Float32Array(n * n * 3);
   const h = n / 2;
+  // the grid ends where the pattern does not: taper the outer quarter smoothly to zero (cos^2) so
+  // no square edge shows at high dynamic range; energy is renormalised below
+  for (let y = 0; y < n; y++) {
+    for (let x = 0; x < n; x++) {
+      const r = Math.hypot(x + 0.5 - h, y + 0.5 - h) / h;
+      const w = r <= 0.75 ? 1 : r >= 1 ? 0 : Math.cos(((r - 0.75) / 0.25) * (Math.PI / 2)) ** 2;
+      p[y * n + x] *= w;
+    }
+  }
   for (const s of spectralSamples(opts.wavelengths ?? 9)) {
     // this wavelength's pattern is the reference one magnified by lambda / lambda_ref
     const m = s.nm / REFERENCE_NM;

@@ -49,6 +49,14 @@ export function shotAssets(shot: ResolvedShot): ShotAssets {
   return a;
 }
 
+/** The streak's default tint: the strongest ghost's coating tint at unit luminance (white without a lens). */
+function coatingTint(assets: ShotAssets): [number, number, number] {
+  const t = assets.lens?.ranked[0]?.tint;
+  if (!t) return [1, 1, 1];
+  const y = 0.2126 * t[0] + 0.7152 * t[1] + 0.0722 * t[2];
+  return y > 0 ? [t[0] / y, t[1] / y, t[2] / y] : [1, 1, 1];
+}
+
 export function matteProvider(shot: ResolvedShot): MatteProvider {
   let p = providers.get(shot);
   if (!p) {
@@ -135,7 +143,7 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       }
       if (shot.streak.fraction > 0) {
         const k = shot.streak.fraction;
-        const tint = shot.streak.tint;
+        const tint = shot.streak.tint ?? coatingTint(assets);
         addStreak(img, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k * tint[0], flux[1] * k * tint[1], flux[2] * k * tint[2]], lengthPx: shot.streak.lengthPx, thicknessPx: shot.streak.thicknessPx }, pixelAspect);
       }
       if (assets.dust) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, shot.dust.fraction, shot.dust.reachPx);

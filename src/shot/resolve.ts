@@ -40,7 +40,7 @@ export const MAX_COORD_PX = 1_000_000;
 export const DEFAULT_GLOW: GlowSettings = { fraction: 0.04, sizePx: 6, falloff: 3 };
 export const DEFAULT_GHOSTS: GhostSettings = { enabled: true, gain: 1, quality: 'medium', threshold: 1e-6 };
 export const DEFAULT_STARBURST: StarburstSettings = { fraction: 0.05, size: 1 };
-export const DEFAULT_STREAK: StreakSettings = { fraction: 0, lengthPx: 200, thicknessPx: 1, tint: [1, 1, 1] };
+export const DEFAULT_STREAK: StreakSettings = { fraction: 0, lengthPx: 200, thicknessPx: 1 };
 export const DEFAULT_DUST: DustSettings = { fraction: 0, density: 1, reachPx: 300, seed: 0 };
 export const DEFAULT_RADIUS_PX = 4;
 
@@ -426,9 +426,9 @@ class Resolver {
         const lengthPx = num(sm, 'length', { min: 1, max: 100_000 }, DEFAULT_STREAK.lengthPx);
         const thicknessPx = num(sm, 'thickness', { min: 0.2, max: 100 }, DEFAULT_STREAK.thicknessPx);
         const cf = sm.get('colour');
-        const colour = cf ? this.colour(cf) : { rgb: [1, 1, 1] as [number, number, number], spec: { kelvin: 6504 } };
+        const colour = cf ? this.colour(cf) : undefined;
         sm.finish();
-        streak = fraction === undefined || lengthPx === undefined || thicknessPx === undefined || !colour ? undefined : { fraction, lengthPx, thicknessPx, tint: colour.rgb };
+        streak = fraction === undefined || lengthPx === undefined || thicknessPx === undefined || (cf && !colour) ? undefined : { fraction, lengthPx, thicknessPx, ...(colour ? { tint: colour.rgb } : {}) };
       }
     }
     let dust: DustSettings | undefined = DEFAULT_DUST;

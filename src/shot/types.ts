@@ -99,8 +99,8 @@ export interface StreakSettings {
   fraction: number;
   lengthPx: number;
   thicknessPx: number;
-  /** linear RGB tint, unit luminance */
-  tint: [number, number, number];
+  /** linear RGB tint, unit luminance; absent: the tint of the lens's coatings (its strongest ghost) */
+  tint?: [number, number, number];
 }
 
 export interface DustSettings {
