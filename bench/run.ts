@@ -131,6 +131,29 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   rmSync(dir, { recursive: true, force: true });
 }
 
+// --- starburst kernel and the light-centred elements at 1920x1080 and 3840x2160
+{
+  const { starburstKernel } = await import('../src/optics/diffraction.js');
+  const { addStarburst } = await import('../src/elements/starburst.js');
+  const { addStreak, addVeil } = await import('../src/elements/streak.js');
+  const { addGlow } = await import('../src/elements/glow.js');
+  let kernel = starburstKernel({ blades: 6, rotationDeg: 0, roundness: 0.15 });
+  const pre = time(() => {
+    kernel = starburstKernel({ blades: 6, rotationDeg: 0, roundness: 0.15 });
+  }, 3);
+  rows.push(['starburst kernel precompute (512x512 FFT, 9 wavelengths)', ms(pre)]);
+  for (const [w, h] of [[1920, 1080], [3840, 2160]]) {
+    const img = new FloatImage(w, h);
+    const e: [number, number, number] = [100, 100, 100];
+    const sb = time(() => addStarburst(img, kernel, { xPx: w / 2, yPx: h / 2, energy: e, binPx: 0.8 * (w / 1920) }, 1));
+    const sbBig = time(() => addStarburst(img, kernel, { xPx: w / 2, yPx: h / 2, energy: e, binPx: 2 * (w / 1920) }, 1));
+    const gl = time(() => addGlow(img, { xPx: w / 2, yPx: h / 2, energy: e, sizePx: 8, falloff: 2.6 }, 1));
+    const ve = time(() => addVeil(img, e, 1));
+    const st = time(() => addStreak(img, { xPx: w / 2, yPx: h / 2, energy: e, lengthPx: 200, thicknessPx: 1 }, 1));
+    rows.push([`${w}x${h}: starburst (small / large bins), glow, veil, streak`, `${ms(sb)} / ${ms(sbBig)}, ${ms(gl)}, ${ms(ve)}, ${ms(st)}`]);
+  }
+}
+
 // --- occlusion: visibility per light per frame (128 points, one alpha matte), and the shutter
 {
   const { diskVisibility, alphaCoverage } = await import('../src/occlusion/visibility.js');

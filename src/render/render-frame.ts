@@ -115,6 +115,16 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
   for (const t of times) {
     const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, t) : 8;
     const veil = [0, 0, 0];
+    // each element's gain at this instant (0 when switched off)
+    const el = shot.elements;
+    const gain = (n: keyof typeof el) => (el[n].enabled ? evalScalar(el[n].gain, t) : 0);
+    const gCore = gain('core');
+    const gGlow = gain('glow');
+    const gGhosts = gain('ghosts');
+    const gStar = gain('starburst');
+    const gStreak = gain('streak');
+    const gDust = gain('dust');
+    const gVeil = gain('veil');
     for (const light of shot.lights) {
       const s = lightState(light, t);
       if (s.gain <= 0) continue;
@@ -124,30 +134,30 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       const disk = { xPx: s.xPx, yPx: s.yPx, radiusPx: s.radiusPx, radiance };
       // the disk itself is hidden pixel by pixel where the mattes cover it
       const clearAt = lookups.length ? (x: number, y: number) => lookups.reduce((c, f) => c * (1 - f(x, y)), 1) : undefined;
-      addDisk(img, disk, pixelAspect, clearAt);
+      if (gCore > 0) addDisk(img, { ...disk, radiance: [radiance[0] * gCore, radiance[1] * gCore, radiance[2] * gCore] }, pixelAspect, clearAt);
       if (visibility <= 0) continue;
       const flux = diskFlux(disk).map((c) => c * visibility) as [number, number, number];
-      const f = shot.glow.fraction;
-      addGlow(
+      const f = shot.glow.fraction * gGlow;
+      if (f > 0) addGlow(
         img,
         { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: shot.glow.sizePx, falloff: shot.glow.falloff },
         pixelAspect,
       );
-      if (assets.lens) {
-        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain, quality: shot.ghosts.quality }, stats);
+      if (assets.lens && gGhosts > 0) {
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain * gGhosts, quality: shot.ghosts.quality }, stats);
       }
-      if (assets.starburst) {
-        const k = shot.starburst.fraction;
+      if (assets.starburst && gStar > 0) {
+        const k = shot.starburst.fraction * gStar;
         const binPx = (binSizeMm(assets.starburst, fNumber) / (sensorMm / widthPx)) * shot.starburst.size;
         addStarburst(img, assets.starburst, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k, flux[1] * k, flux[2] * k], binPx }, pixelAspect);
       }
-      if (shot.streak.fraction > 0) {
-        const k = shot.streak.fraction;
+      if (shot.streak.fraction * gStreak > 0) {
+        const k = shot.streak.fraction * gStreak;
         const tint = shot.streak.tint ?? coatingTint(assets);
         addStreak(img, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k * tint[0], flux[1] * k * tint[1], flux[2] * k * tint[2]], lengthPx: shot.streak.lengthPx, thicknessPx: shot.streak.thicknessPx }, pixelAspect);
       }
-      if (assets.dust) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, shot.dust.fraction, shot.dust.reachPx);
-      for (let c = 0; c < 3; c++) veil[c] += flux[c] * shot.veil.fraction;
+      if (assets.dust && gDust > 0) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, shot.dust.fraction * gDust, shot.dust.reachPx);
+      for (let c = 0; c < 3; c++) veil[c] += flux[c] * shot.veil.fraction * gVeil;
     }
     if (veil[0] > 0 || veil[1] > 0 || veil[2] > 0) addVeil(img, veil as [number, number, number], pixelAspect);
   }

@@ -15,6 +15,8 @@ import { LENS_KEYS, parseLensText, readLens } from './lens-file.js';
 import { Field, MapField, parseYamlSource } from './source.js';
 import { parseTrackCsv } from './track-csv.js';
 import type {
+  ElementControl,
+  ElementName,
   DustSettings,
   StarburstSettings,
   StreakSettings,
@@ -97,7 +99,8 @@ class Resolver {
     const shutterField = m.get('shutter');
     const shutter = shutterField ? this.shutter(shutterField) : { angleDeg: 0, samples: 1, phaseDeg: 0 };
     const flareField = m.get('flare');
-    const flare = flareField ? this.flare(flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS, starburst: DEFAULT_STARBURST, veil: { fraction: 0 }, streak: DEFAULT_STREAK, streakGiven: false, dust: DEFAULT_DUST, dustSeedGiven: false };
+    const allOn = () => Object.fromEntries((['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'] as ElementName[]).map((n) => [n, this.control(undefined)!])) as Record<ElementName, ElementControl>;
+    const flare = flareField ? this.flare(flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS, starburst: DEFAULT_STARBURST, veil: { fraction: 0 }, streak: DEFAULT_STREAK, streakGiven: false, dust: DEFAULT_DUST, dustSeedGiven: false, elements: allOn() };
     const outField = m.require('output', 'where and how frames are written');
     const output = outField ? this.output(outField) : undefined;
     m.finish();
@@ -137,6 +140,7 @@ class Resolver {
       veil: flare.veil,
       streak,
       dust: { ...flare.dust, seed: flare.dustSeedGiven ? flare.dust.seed : seed },
+      elements: flare.elements,
       mattes,
       shutter,
       output,
@@ -387,9 +391,36 @@ class Resolver {
     return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
   }
 
+  /** `enabled` and `gain` (a number or keys) of an element's mapping. */
+  control(m: MapField | undefined): ElementControl | undefined {
+    const on: ElementControl = { enabled: true, gain: [{ frame: 0, value: 1, ease: LINEAR }] };
+    if (!m) return on;
+    const en = m.get('enabled');
+    if (en && typeof en.scalar !== 'boolean') en.expected('true or false');
+    const g = m.get('gain');
+    const gain = g ? this.scalarKeys(g, 'value', { min: 0, max: 1e6 }) : on.gain;
+    if (!gain) return undefined;
+    return { enabled: en ? en.scalar === true : true, gain };
+  }
+
   flare(f: Field) {
     const m = f.map();
     if (!m) return undefined;
+    const controls: Partial<Record<ElementName, ElementControl | undefined>> = {};
+    // element mappings are read twice: once here for enabled/gain, once below for their own keys
+    const peek = (name: ElementName) => {
+      const x = m.get(name);
+      if (x && x.isMap()) controls[name] = this.control(new MapField(x));
+      else controls[name] = this.control(undefined);
+    };
+    (['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'] as ElementName[]).forEach(peek);
+    const core = m.get('core');
+    if (core) {
+      const cm = core.map('{gain, enabled}');
+      cm?.has('enabled');
+      cm?.has('gain');
+      cm?.finish();
+    }
     const g = m.get('glow');
     const gh = m.get('ghosts');
     const sb = m.get('starburst');
@@ -405,21 +436,27 @@ class Resolver {
     };
     let starburst: StarburstSettings | undefined = DEFAULT_STARBURST;
     if (sb) {
-      const sm = sb.map('{fraction, size}');
+      const sm = sb.map('{fraction, size, gain, enabled}');
+      sm?.has('enabled');
+      sm?.has('gain');
       starburst = sm ? { fraction: num(sm, 'fraction', { min: 0, max: 1 }, DEFAULT_STARBURST.fraction)!, size: num(sm, 'size', { min: 0.01, max: 1000 }, 1)! } : undefined;
       sm?.finish();
       if (starburst && (Number.isNaN(starburst.fraction) || starburst.fraction === undefined || starburst.size === undefined)) starburst = undefined;
     }
     let veil: { fraction: number } | undefined = { fraction: 0 };
     if (vf) {
-      const vm = vf.map('{fraction}');
+      const vm = vf.map('{fraction, gain, enabled}');
+      vm?.has('enabled');
+      vm?.has('gain');
       const fr = vm ? num(vm, 'fraction', { min: 0, max: 1 }, 0) : undefined;
       vm?.finish();
       veil = fr === undefined ? undefined : { fraction: fr };
     }
     let streak: StreakSettings | undefined = DEFAULT_STREAK;
     if (st) {
-      const sm = st.map('{fraction, length, thickness, colour}');
+      const sm = st.map('{fraction, length, thickness, colour, gain, enabled}');
+      sm?.has('enabled');
+      sm?.has('gain');
       if (!sm) streak = undefined;
       else {
         const fraction = num(sm, 'fraction', { min: 0, max: 1 }, 0.02);
@@ -434,7 +471,9 @@ class Resolver {
     let dust: DustSettings | undefined = DEFAULT_DUST;
     let dustSeedGiven = false;
     if (du) {
-      const dm = du.map('{fraction, density, reach, seed}');
+      const dm = du.map('{fraction, density, reach, seed, gain, enabled}');
+      dm?.has('enabled');
+      dm?.has('gain');
       if (!dm) dust = undefined;
       else {
         dustSeedGiven = dm.has('seed');
@@ -447,7 +486,8 @@ class Resolver {
       }
     }
     if (!glow || !ghosts || !starburst || !veil || !streak || !dust) return undefined;
-    return { glow, ghosts, starburst, veil, streak, streakGiven: Boolean(st), dust, dustSeedGiven };
+    if (Object.values(controls).some((c) => c === undefined)) return undefined;
+    return { glow, ghosts, starburst, veil, streak, streakGiven: Boolean(st), dust, dustSeedGiven, elements: controls as Record<ElementName, ElementControl> };
   }
 
   glow(g: Field): GlowSettings | undefined {
@@ -457,6 +497,8 @@ class Resolver {
       const x = gm.get(key);
       return x ? x.number(rule) : dflt;
     };
+    gm.has('enabled');
+    gm.has('gain');
     const fraction = get('fraction', { min: 0, max: 1 }, DEFAULT_GLOW.fraction);
     const sizePx = get('size', { min: 0.5, max: 100_000 }, DEFAULT_GLOW.sizePx);
     const falloff = get('falloff', { min: 2, minExclusive: true, max: 8 }, DEFAULT_GLOW.falloff);
@@ -469,8 +511,8 @@ class Resolver {
     const m = g.map('{enabled, gain, quality, threshold}');
     if (!m) return undefined;
     const en = m.get('enabled');
-    if (en && typeof en.scalar !== 'boolean') en.expected('true or false');
-    const gain = m.get('gain')?.number({ min: 0, max: 1e6 }) ?? (m.has('gain') ? undefined : DEFAULT_GHOSTS.gain);
+    m.has('gain'); // keyframable: read with the other elements' gains
+    const gain = 1;
     const qf = m.get('quality');
     const quality = qf ? qf.oneOf(['draft', 'low', 'medium', 'high'] as const) : DEFAULT_GHOSTS.quality;
     const threshold = m.get('threshold')?.number({ min: 0, max: 1 }) ?? (m.has('threshold') ? undefined : DEFAULT_GHOSTS.threshold);

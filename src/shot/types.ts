@@ -88,6 +88,14 @@ export interface GlowSettings {
   falloff: number;
 }
 
+/** Per element: on or off, and an artistic gain (keyframable) on top of its physical brightness. */
+export interface ElementControl {
+  enabled: boolean;
+  gain: Key<number>[];
+}
+
+export type ElementName = 'core' | 'glow' | 'ghosts' | 'starburst' | 'veil' | 'streak' | 'dust';
+
 export interface StarburstSettings {
   /** fraction of the light's flux in the diffraction pattern (0: off) */
   fraction: number;
@@ -151,6 +159,8 @@ export interface ResolvedShot {
   veil: { fraction: number };
   streak: StreakSettings;
   dust: DustSettings;
+  /** on/off and keyframable gain for each element */
+  elements: Record<ElementName, ElementControl>;
   mattes: ResolvedMatte[];
   shutter: ShutterSettings;
   output: ResolvedOutput;

@@ -81,3 +81,25 @@ describe('dust', () => {
     expect(bright.channelSums()[0] / near.channelSums()[0]).toBeCloseTo(4, 6);
   });
 });
+
+describe('element gains and switches in the shot', () => {
+  it('a glow gain keyed from 0 to 2 scales the glow frame by frame; enabled: false removes an element', async () => {
+    const { resolveShot } = await import('../../src/shot/resolve.js');
+    const { renderFrame } = await import('../../src/render/render-frame.js');
+    const base = `version: 1
+frame: { width: 120, height: 80, rate: 24, first: 1, last: 3 }
+lights: [{ name: a, position: [60, 40], intensity: 4, radius: 2 }]
+flare:
+  core: { enabled: false }
+  starburst: { enabled: false }
+  glow: { fraction: 0.2, size: 6, gain: [{ frame: 1, value: 0 }, { frame: 3, value: 2 }] }
+output: { path: "f.####.png" }
+`;
+    const shot = resolveShot(base, 'g.yaml', { readText: () => '' });
+    const sums = [1, 2, 3].map((f) => renderFrame(shot, f).channelSums()[1]);
+    expect(sums[0]).toBe(0);
+    expect(sums[2] / sums[1]).toBeCloseTo(2, 6);
+    const off = resolveShot(base.replace('glow: { fraction: 0.2', 'glow: { enabled: false, fraction: 0.2'), 'g.yaml', { readText: () => '' });
+    expect(renderFrame(off, 3).channelSums()[1]).toBe(0);
+  });
+});
