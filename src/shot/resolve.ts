@@ -391,7 +391,7 @@ class Resolver {
     return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
   }
 
-  /** `enabled` and `gain` (a number or keys) of an element's mapping. */
+  /** `enabled` and `gain` (a number or keys) of an element's mapping; absent: on, gain 1. */
   control(m: MapField | undefined): ElementControl | undefined {
     const on: ElementControl = { enabled: true, gain: [{ frame: 0, value: 1, ease: LINEAR }] };
     if (!m) return on;
@@ -403,122 +403,89 @@ class Resolver {
     return { enabled: en ? en.scalar === true : true, gain };
   }
 
+  /**
+   * One element's mapping under `flare:`: its `enabled` and `gain`, and its own keys read by
+   * `read`; absent, the defaults.
+   */
+  section<T>(f: Field | undefined, what: string, dflt: T, read: (m: MapField) => T | undefined): { settings: T; control: ElementControl } | undefined {
+    if (!f) return { settings: dflt, control: this.control(undefined)! };
+    const m = f.map(what);
+    if (!m) return undefined;
+    const control = this.control(m);
+    const settings = read(m);
+    m.finish();
+    return settings !== undefined && control ? { settings, control } : undefined;
+  }
+
   flare(f: Field) {
     const m = f.map();
     if (!m) return undefined;
-    const controls: Partial<Record<ElementName, ElementControl | undefined>> = {};
-    // element mappings are read twice: once here for enabled/gain, once below for their own keys
-    const peek = (name: ElementName) => {
-      const x = m.get(name);
-      if (x && x.isMap()) controls[name] = this.control(new MapField(x));
-      else controls[name] = this.control(undefined);
-    };
-    (['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'] as ElementName[]).forEach(peek);
-    const core = m.get('core');
-    if (core) {
-      const cm = core.map('{gain, enabled}');
-      cm?.has('enabled');
-      cm?.has('gain');
-      cm?.finish();
-    }
-    const g = m.get('glow');
-    const gh = m.get('ghosts');
-    const sb = m.get('starburst');
-    const vf = m.get('veil');
-    const st = m.get('streak');
-    const du = m.get('dust');
-    m.finish();
-    const glow = g ? this.glow(g) : DEFAULT_GLOW;
-    const ghosts = gh ? this.ghosts(gh) : DEFAULT_GHOSTS;
     const num = (mf: MapField, key: string, rule: Parameters<Field['number']>[0], dflt: number) => {
       const x = mf.get(key);
       return x ? x.number(rule) : dflt;
     };
-    let starburst: StarburstSettings | undefined = DEFAULT_STARBURST;
-    if (sb) {
-      const sm = sb.map('{fraction, size, gain, enabled}');
-      sm?.has('enabled');
-      sm?.has('gain');
-      starburst = sm ? { fraction: num(sm, 'fraction', { min: 0, max: 1 }, DEFAULT_STARBURST.fraction)!, size: num(sm, 'size', { min: 0.01, max: 1000 }, 1)! } : undefined;
-      sm?.finish();
-      if (starburst && (Number.isNaN(starburst.fraction) || starburst.fraction === undefined || starburst.size === undefined)) starburst = undefined;
-    }
-    let veil: { fraction: number } | undefined = { fraction: 0 };
-    if (vf) {
-      const vm = vf.map('{fraction, gain, enabled}');
-      vm?.has('enabled');
-      vm?.has('gain');
-      const fr = vm ? num(vm, 'fraction', { min: 0, max: 1 }, 0) : undefined;
-      vm?.finish();
-      veil = fr === undefined ? undefined : { fraction: fr };
-    }
-    let streak: StreakSettings | undefined = DEFAULT_STREAK;
-    if (st) {
-      const sm = st.map('{fraction, length, thickness, colour, gain, enabled}');
-      sm?.has('enabled');
-      sm?.has('gain');
-      if (!sm) streak = undefined;
-      else {
-        const fraction = num(sm, 'fraction', { min: 0, max: 1 }, 0.02);
-        const lengthPx = num(sm, 'length', { min: 1, max: 100_000 }, DEFAULT_STREAK.lengthPx);
-        const thicknessPx = num(sm, 'thickness', { min: 0.2, max: 100 }, DEFAULT_STREAK.thicknessPx);
-        const cf = sm.get('colour');
-        const colour = cf ? this.colour(cf) : undefined;
-        sm.finish();
-        streak = fraction === undefined || lengthPx === undefined || thicknessPx === undefined || (cf && !colour) ? undefined : { fraction, lengthPx, thicknessPx, ...(colour ? { tint: colour.rgb } : {}) };
-      }
-    }
-    let dust: DustSettings | undefined = DEFAULT_DUST;
+    const core = this.section(m.get('core'), '{enabled, gain}', true, () => true);
+    const glow = this.section(m.get('glow'), '{fraction, size, falloff, enabled, gain}', DEFAULT_GLOW, (gm) => {
+      const fraction = num(gm, 'fraction', { min: 0, max: 1 }, DEFAULT_GLOW.fraction);
+      const sizePx = num(gm, 'size', { min: 0.5, max: 100_000 }, DEFAULT_GLOW.sizePx);
+      const falloff = num(gm, 'falloff', { min: 2, minExclusive: true, max: 8 }, DEFAULT_GLOW.falloff);
+      return fraction === undefined || sizePx === undefined || falloff === undefined ? undefined : { fraction, sizePx, falloff };
+    });
+    const ghosts = this.section(m.get('ghosts'), '{quality, threshold, enabled, gain}', DEFAULT_GHOSTS, (gm) => {
+      const qf = gm.get('quality');
+      const quality = qf ? qf.oneOf(['draft', 'low', 'medium', 'high'] as const) : DEFAULT_GHOSTS.quality;
+      const threshold = num(gm, 'threshold', { min: 0, max: 1 }, DEFAULT_GHOSTS.threshold);
+      return !quality || threshold === undefined ? undefined : { enabled: true, gain: 1, quality, threshold };
+    });
+    const starburst = this.section(m.get('starburst'), '{fraction, size, enabled, gain}', DEFAULT_STARBURST, (sm) => {
+      const fraction = num(sm, 'fraction', { min: 0, max: 1 }, DEFAULT_STARBURST.fraction);
+      const size = num(sm, 'size', { min: 0.01, max: 1000 }, DEFAULT_STARBURST.size);
+      return fraction === undefined || size === undefined ? undefined : { fraction, size };
+    });
+    const veil = this.section(m.get('veil'), '{fraction, enabled, gain}', { fraction: 0 }, (vm) => {
+      const fraction = num(vm, 'fraction', { min: 0, max: 1 }, 0);
+      return fraction === undefined ? undefined : { fraction };
+    });
+    const streakField = m.get('streak');
+    const streak = this.section(streakField, '{fraction, length, thickness, colour, enabled, gain}', DEFAULT_STREAK, (sm) => {
+      const fraction = num(sm, 'fraction', { min: 0, max: 1 }, 0.02);
+      const lengthPx = num(sm, 'length', { min: 1, max: 100_000 }, DEFAULT_STREAK.lengthPx);
+      const thicknessPx = num(sm, 'thickness', { min: 0.2, max: 100 }, DEFAULT_STREAK.thicknessPx);
+      const cf = sm.get('colour');
+      const colour = cf ? this.colour(cf) : undefined;
+      if (fraction === undefined || lengthPx === undefined || thicknessPx === undefined || (cf && !colour)) return undefined;
+      return { fraction, lengthPx, thicknessPx, ...(colour ? { tint: colour.rgb } : {}) };
+    });
     let dustSeedGiven = false;
-    if (du) {
-      const dm = du.map('{fraction, density, reach, seed, gain, enabled}');
-      dm?.has('enabled');
-      dm?.has('gain');
-      if (!dm) dust = undefined;
-      else {
-        dustSeedGiven = dm.has('seed');
-        const fraction = num(dm, 'fraction', { min: 0, max: 1 }, 0.01);
-        const density = num(dm, 'density', { min: 0, max: 100 }, 1);
-        const reachPx = num(dm, 'reach', { min: 1, max: 100_000 }, 300);
-        const seed = num(dm, 'seed', { integer: true, min: 0, max: 2 ** 32 - 1 }, 0);
-        dm.finish();
-        dust = fraction === undefined || density === undefined || reachPx === undefined || seed === undefined ? undefined : { fraction, density, reachPx, seed };
-      }
-    }
-    if (!glow || !ghosts || !starburst || !veil || !streak || !dust) return undefined;
-    if (Object.values(controls).some((c) => c === undefined)) return undefined;
-    return { glow, ghosts, starburst, veil, streak, streakGiven: Boolean(st), dust, dustSeedGiven, elements: controls as Record<ElementName, ElementControl> };
-  }
-
-  glow(g: Field): GlowSettings | undefined {
-    const gm = g.map();
-    if (!gm) return undefined;
-    const get = (key: string, rule: Parameters<Field['number']>[0], dflt: number) => {
-      const x = gm.get(key);
-      return x ? x.number(rule) : dflt;
-    };
-    gm.has('enabled');
-    gm.has('gain');
-    const fraction = get('fraction', { min: 0, max: 1 }, DEFAULT_GLOW.fraction);
-    const sizePx = get('size', { min: 0.5, max: 100_000 }, DEFAULT_GLOW.sizePx);
-    const falloff = get('falloff', { min: 2, minExclusive: true, max: 8 }, DEFAULT_GLOW.falloff);
-    gm.finish();
-    if (fraction === undefined || sizePx === undefined || falloff === undefined) return undefined;
-    return { fraction, sizePx, falloff };
-  }
-
-  ghosts(g: Field): GhostSettings | undefined {
-    const m = g.map('{enabled, gain, quality, threshold}');
-    if (!m) return undefined;
-    const en = m.get('enabled');
-    m.has('gain'); // keyframable: read with the other elements' gains
-    const gain = 1;
-    const qf = m.get('quality');
-    const quality = qf ? qf.oneOf(['draft', 'low', 'medium', 'high'] as const) : DEFAULT_GHOSTS.quality;
-    const threshold = m.get('threshold')?.number({ min: 0, max: 1 }) ?? (m.has('threshold') ? undefined : DEFAULT_GHOSTS.threshold);
+    const dust = this.section(m.get('dust'), '{fraction, density, reach, seed, enabled, gain}', DEFAULT_DUST, (dm) => {
+      dustSeedGiven = dm.has('seed');
+      const fraction = num(dm, 'fraction', { min: 0, max: 1 }, 0.01);
+      const density = num(dm, 'density', { min: 0, max: 100 }, 1);
+      const reachPx = num(dm, 'reach', { min: 1, max: 100_000 }, 300);
+      const seed = num(dm, 'seed', { integer: true, min: 0, max: 2 ** 32 - 1 }, 0);
+      return fraction === undefined || density === undefined || reachPx === undefined || seed === undefined ? undefined : { fraction, density, reachPx, seed };
+    });
     m.finish();
-    if (gain === undefined || !quality || threshold === undefined) return undefined;
-    return { enabled: en ? en.scalar === true : true, gain, quality, threshold };
+    if (!core || !glow || !ghosts || !starburst || !veil || !streak || !dust) return undefined;
+    return {
+      glow: glow.settings,
+      ghosts: { ...ghosts.settings, enabled: ghosts.control.enabled },
+      starburst: starburst.settings,
+      veil: veil.settings,
+      streak: streak.settings,
+      streakGiven: Boolean(streakField),
+      dust: dust.settings,
+      dustSeedGiven,
+      elements: {
+        core: core.control,
+        glow: glow.control,
+        ghosts: ghosts.control,
+        starburst: starburst.control,
+        veil: veil.control,
+        streak: streak.control,
+        dust: dust.control,
+      } satisfies Record<ElementName, ElementControl>,
+    };
   }
 
   lens(f: Field): ResolvedLens | undefined {
