@@ -13,7 +13,7 @@ export class Progress {
 
   constructor(
     private readonly sink: ProgressSink,
-    private readonly total: number,
+    public total: number,
     private readonly label: string,
   ) {}
 

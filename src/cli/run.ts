@@ -22,6 +22,7 @@ import { framesOnDisk, readPngLinear } from '../io/read-png.js';
 import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
 import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 import { formatFlashReport } from './flash-report.js';
+import { outputSequences, passTemplate } from '../render/passes.js';
 import { batchHtml, type BatchReport, type BatchShot } from '../render/batch-report.js';
 import { FloatImage } from '../raster/image.js';
 import { slurmScripts } from '../farm/slurm.js';
@@ -122,27 +123,41 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       const started = performance.now();
       let count = 0;
       const emit = (o: object) => io.stderr(`${JSON.stringify(o)}\n`);
-      // every render screens what it makes for flashing (photosensitive seizure risk)
+      // every render screens what it makes for flashing (photosensitive seizure risk); a share of a
+      // sharded render sees every Nth frame only, so the whole is screened after (see `farm`)
+      const sharded = Boolean(shard && shard.n > 1);
       const analyser = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
-      const result = await renderSequence(shot, {
-        frames,
-        template,
-        shard,
-        jobs,
-        force: opts.force,
-        signal: io.signal,
-        onCells: (f, cells) => analyser.addCells(f, cells),
-        onFrame: (e) => {
-          count++;
-          if (json) {
-            const secs = (performance.now() - started) / 1000;
-            emit({ event: e.kind, frame: e.frame, done: count, total, fps: Number((count / Math.max(secs, 1e-6)).toFixed(3)), ...(e.kind === 'failed' ? { error: e.error } : {}) });
-          } else if (e.kind === 'failed') {
-            io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame} failed: ${e.error}\n`);
-          }
-          progress?.frameDone(e.kind !== 'failed');
-        },
-      });
+      const sequences = outputSequences(shot);
+      total *= sequences.length;
+      if (progress) progress.total = total;
+      const result = { written: [] as number[], skipped: [] as number[], failed: [] as { frame: number; error: string }[], interrupted: false, manifest: '' };
+      for (const seq of sequences) {
+        if (result.interrupted) break;
+        const r = await renderSequence(seq.shot, {
+          frames,
+          template: template && seq.name !== 'combined' ? passTemplate(template, seq.name as never) : template,
+          shard,
+          jobs,
+          force: opts.force,
+          signal: io.signal,
+          onCells: sequences.length === 1 && !sharded ? (f, cells) => analyser.addCells(f, cells) : undefined,
+          onFrame: (e) => {
+            count++;
+            if (json) {
+              const secs = (performance.now() - started) / 1000;
+              emit({ event: e.kind, frame: e.frame, ...(sequences.length > 1 ? { pass: seq.name } : {}), done: count, total, fps: Number((count / Math.max(secs, 1e-6)).toFixed(3)), ...(e.kind === 'failed' ? { error: e.error } : {}) });
+            } else if (e.kind === 'failed') {
+              io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame}${sequences.length > 1 ? ` (${seq.name} pass)` : ''} failed: ${e.error}\n`);
+            }
+            progress?.frameDone(e.kind !== 'failed');
+          },
+        });
+        result.written.push(...r.written);
+        result.skipped.push(...r.skipped);
+        result.failed.push(...r.failed);
+        result.interrupted = r.interrupted;
+        result.manifest = r.manifest;
+      }
       progress?.finish();
       const dest = template ?? shot.output.template;
       const seconds = (performance.now() - started) / 1000;
@@ -157,13 +172,19 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         setExit(ExitCode.framesFailed);
       } else if (progress) {
         const skipped = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
-        io.stderr(`rendered ${result.written.length} frames to ${dest}${skipped} in ${seconds.toFixed(1)} s\n`);
+      void skipped;
+        const kept = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
+        const where = sequences.length > 1 ? `${sequences.length} passes (${sequences.map((q) => q.name).join(', ')}) beside ${dest}` : dest;
+        io.stderr(`rendered ${result.written.length} frames to ${where}${kept} in ${seconds.toFixed(1)} s\n`);
       }
-      if (!result.interrupted) {
-        const report = analyser.report();
+      if (!result.interrupted && sharded) {
+        if (!opts.quiet) io.stderr(`flash screening needs every frame in order: run straylight flashes ${shotFile} when all shards are done\n`);
+      } else if (!result.interrupted && result.failed.length === 0) {
+        // separate passes are judged together, as the viewer will see them: read back and summed
+        const report = sequences.length === 1 ? analyser.report() : screenSequences(sequences.map((q) => (template && q.name !== 'combined' ? passTemplate(template, q.name as never) : q.shot.output.template)), frames, shot).report();
         if (report.spans.length > 0) {
           io.stderr(`WARNING: this pass may flash dangerously for viewers with photosensitive epilepsy.\n${formatFlashReport(report, timecodeOf(shot), 'over black')}`);
-          if (opts.failOnFlash && result.failed.length === 0) setExit(ExitCode.flashes);
+          if (opts.failOnFlash) setExit(ExitCode.flashes);
         }
       }
     });
@@ -188,15 +209,21 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           const shot = loadShot(file);
           entry.output = shot.output.template;
           entry.frames = shot.frame.last - shot.frame.first + 1;
-          const analyser = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
-          const result = await renderSequence(shot, { jobs: opts.jobs ?? availableParallelism(), force: opts.force, signal: io.signal, onCells: (f, c) => analyser.addCells(f, c) });
-          entry.written = result.written.length;
-          entry.skipped = result.skipped.length;
-          entry.failed = result.failed;
-          entry.status = result.interrupted ? 'interrupted' : result.failed.length ? 'frames-failed' : 'ok';
-          // screening covers the frames rendered now; kept frames were screened when they were made
-          if (result.skipped.length === 0) entry.flashes = analyser.report().spans;
-          else if (result.written.length) entry.warnings.push('flash screening covered only the frames rendered in this run (run straylight flashes on the shot for all of them)');
+          const sequences = outputSequences(shot);
+          entry.frames *= sequences.length;
+          let interrupted = false;
+          for (const seq of sequences) {
+            const result = await renderSequence(seq.shot, { jobs: opts.jobs ?? availableParallelism(), force: opts.force, signal: io.signal });
+            entry.written += result.written.length;
+            entry.skipped += result.skipped.length;
+            entry.failed.push(...result.failed);
+            interrupted ||= result.interrupted;
+          }
+          entry.status = interrupted ? 'interrupted' : entry.failed.length ? 'frames-failed' : 'ok';
+          // screen the whole sequence as it is on disk now (kept frames included), passes summed
+          if (entry.status === 'ok') {
+            entry.flashes = screenSequences(sequences.map((q) => q.shot.output.template), { first: shot.frame.first, last: shot.frame.last }, shot).report().spans;
+          }
           const mid = Math.round((shot.frame.first + shot.frame.last) / 2);
           const thumbFile = expandFramePath(shot.output.template, mid);
           if (existsSync(thumbFile)) entry.thumbnail = thumbnail(thumbFile);
@@ -312,7 +339,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         reports = templates.map((t) => verifySequence(t));
       } else {
         const shot = loadShot(arg);
-        reports = [verifySequence(shot.output.template, { first: shot.frame.first, last: shot.frame.last, hash: shotHash(shot) })];
+        reports = outputSequences(shot).map((q) => verifySequence(q.shot.output.template, { first: shot.frame.first, last: shot.frame.last, hash: shotHash(q.shot) }));
       }
       io.stdout(opts.json ? `${JSON.stringify(reports, null, 2)}\n` : reports.map(formatVerify).join(''));
       if (reports.some((r) => r.missing.length || r.corrupt.length || !Number.isFinite(r.first))) setExit(ExitCode.framesFailed);
@@ -330,12 +357,14 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       let frames: number[];
       let rate: FrameRate;
       let tc: ReturnType<typeof timecodeOf>;
+      let templates: string[] | undefined;
       if (/\.ya?ml$/i.test(arg)) {
         const shot = loadShot(arg);
-        template = shot.output.template;
+        templates = outputSequences(shot).map((q) => q.shot.output.template);
+        template = templates[0];
         frames = [];
         for (let f = shot.frame.first; f <= shot.frame.last; f++) frames.push(f);
-        const missing = frames.filter((f) => !existsSync(expandFramePath(template, f)));
+        const missing = frames.filter((f) => templates!.some((t) => !existsSync(expandFramePath(t, f))));
         if (missing.length > 0) {
           throw new InputError(`${arg}: ${missing.length} of ${frames.length} frames are not rendered yet (first missing: ${expandFramePath(template, missing[0])}); render the shot first`);
         }
@@ -353,10 +382,19 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         tc = { rate, dropFrame: false, startFrames: frames[0], first: frames[0] };
       }
       const first = readPngLinear(expandFramePath(template, frames[0]));
+      for (const other of (templates ?? []).slice(1)) {
+        const p = readPngLinear(expandFramePath(other, frames[0]));
+        for (let i = 0; i < first.rgb.length; i++) first.rgb[i] += p.rgb[i];
+      }
       const black = new FlashAnalyser(first.width, first.height, rate);
       const plated = opts.plate ? new FlashAnalyser(first.width, first.height, rate) : undefined;
       for (const f of frames) {
         const frame = f === frames[0] ? first : readPngLinear(expandFramePath(template, f));
+        // separate passes are judged summed, as they will be seen
+        for (const other of (templates ?? []).slice(1)) {
+          const p = readPngLinear(expandFramePath(other, f));
+          for (let i = 0; i < frame.rgb.length; i++) frame.rgb[i] += p.rgb[i];
+        }
         black.addFrame(f, frame.rgb, 3);
         if (plated) {
           const plateFile = expandFramePath(path.resolve(opts.plate!), f);
@@ -438,6 +476,21 @@ function thumbnail(file: string): string {
     }
   }
   return `data:image/png;base64,${encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }).toString('base64')}`;
+}
+
+/** Screen sequences summed frame by frame (separate passes, as they will be seen together). */
+function screenSequences(templates: string[], range: FrameRange, shot: ResolvedShot): FlashAnalyser {
+  const a = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
+  for (let f = range.first; f <= range.last; f++) {
+    let sum: Float32Array | undefined;
+    for (const t of templates) {
+      const p = readPngLinear(expandFramePath(t, f));
+      if (!sum) sum = p.rgb;
+      else for (let i = 0; i < sum.length; i++) sum[i] += p.rgb[i];
+    }
+    a.addFrame(f, sum!, 3);
+  }
+  return a;
 }
 
 function timecodeOf(shot: ResolvedShot) {

@@ -32,9 +32,13 @@ exec ${q(p.node)} ${q(p.bin)} render ${q(p.shotFile)} --shard "\${SLURM_ARRAY_TA
   const verify = `#!/bin/bash
 #SBATCH --job-name=straylight-verify-${name}
 #SBATCH --output=${p.folder}/verify-%j.log
-${part}# checks that every frame is present and intact against the shards' manifests
-set -euo pipefail
-exec ${q(p.node)} ${q(p.bin)} verify ${q(p.shotFile)}
+${part}# checks that every frame is present and intact against the shards' manifests, then screens
+# the whole sequence for flashing (the shards could not: each saw every Nth frame)
+set -uo pipefail
+${q(p.node)} ${q(p.bin)} verify ${q(p.shotFile)}
+status=$?
+[ "$status" -eq 0 ] && ${q(p.node)} ${q(p.bin)} flashes ${q(p.shotFile)}
+exit $status
 `;
   const submit = `#!/bin/bash
 # submits the render array, then the verify job to run after it

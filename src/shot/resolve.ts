@@ -643,6 +643,8 @@ class Resolver {
     const transfer = tf ? tf.oneOf(['srgb', 'linear'] as const) : 'srgb';
     const af = m.get('alpha');
     const alpha = af ? af.oneOf(['none', 'premultiplied'] as const) : 'none';
+    const pf = m.get('passes');
+    const passes = pf ? pf.oneOf(['combined', 'separate'] as const) : 'combined';
     m.finish();
     const rel = pathField?.string('a frame-path template such as render/shot.####.png');
     let template: string | undefined;
@@ -651,8 +653,8 @@ class Resolver {
       if (problem) pathField!.error(problem);
       else template = path.resolve(this.dir, rel);
     }
-    if (!template || !format || !transfer || !alpha) return undefined;
-    return { template, format, transfer, alpha };
+    if (!template || !format || !transfer || !alpha || !passes) return undefined;
+    return { template, format, transfer, alpha, passes };
   }
 }
 

@@ -141,6 +141,8 @@ export interface ResolvedOutput {
   format: OutputFormat;
   transfer: Transfer;
   alpha: AlphaMode;
+  /** one combined pass, or one sequence per element (x.glow.####.png, ...) for balancing later */
+  passes: 'combined' | 'separate';
 }
 
 export interface ResolvedShot {

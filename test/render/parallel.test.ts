@@ -171,3 +171,33 @@ output: { path: "out/f.####.png" }
     expect((await renderSequence(shot())).written).toEqual([1, 2]);
   });
 });
+
+describe('separate passes', () => {
+  it('writes one sequence per element that adds light, which sum to the combined frame', async () => {
+    const dir = tempDir();
+    const { run } = await import('../../src/cli/run.js');
+    const shotText = SHOT.replace('flare: { ghosts: { quality: draft } }', 'flare: { ghosts: { quality: draft }, veil: { fraction: 0.01 } }');
+    writeFileSync(path.join(dir, 'combined.yaml'), shotText);
+    writeFileSync(path.join(dir, 'separate.yaml'), shotText.replace('output: { path: "out/f.####.png" }', 'output: { path: "sep/f.####.png", passes: separate, transfer: linear }').replace('lens:', 'lens:'));
+    writeFileSync(path.join(dir, 'linear.yaml'), shotText.replace('output: { path: "out/f.####.png" }', 'output: { path: "lin/f.####.png", transfer: linear }'));
+    const quiet = { stdout: () => {}, stderr: () => {}, stderrIsTTY: false };
+    expect(await run(['render', path.join(dir, 'separate.yaml'), '--quiet', '--jobs', '2'], quiet)).toBe(0);
+    expect(await run(['render', path.join(dir, 'linear.yaml'), '--quiet', '--jobs', '1'], quiet)).toBe(0);
+    const names = readdirSync(path.join(dir, 'sep')).filter((f) => f.endsWith('.0105.png')).sort();
+    expect(names).toEqual(['f.core.0105.png', 'f.ghosts.0105.png', 'f.glow.0105.png', 'f.starburst.0105.png', 'f.veil.0105.png']);
+    // in linear light the passes add up to the combined frame (within 16-bit rounding, and where nothing clips)
+    const sum = new Float64Array(160 * 90 * 3);
+    for (const n of names) {
+      const p = decode(readFileSync(path.join(dir, 'sep', n)));
+      for (let i = 0; i < sum.length; i++) sum[i] += p.data[i] / 65535;
+    }
+    const whole = decode(readFileSync(path.join(dir, 'lin', 'f.0105.png')));
+    let worst = 0;
+    for (let i = 0; i < sum.length; i++) if (whole.data[i] < 65000) worst = Math.max(worst, Math.abs(sum[i] - whole.data[i] / 65535));
+    expect(worst).toBeLessThan(5 / 65535);
+    // verify checks every pass
+    let out = '';
+    expect(await run(['verify', path.join(dir, 'separate.yaml')], { ...quiet, stdout: (s) => (out += s) })).toBe(0);
+    expect(out.trim().split('\n')).toHaveLength(5);
+  });
+});

@@ -1,0 +1,54 @@
+// Separate passes: one sequence per flare element, so a compositor can balance them later. Each
+// pass is the shot with only its element on, written beside the combined name (x.glow.####.png),
+// so resuming, shards, manifests and verify work per pass exactly as for one sequence.
+
+import { parseFrameTemplate } from '../io/frame-path.js';
+import { adoptShotAssets, shotAssets } from './render-frame.js';
+import type { ElementName, ResolvedShot } from '../shot/types.js';
+
+export const ELEMENTS: ElementName[] = ['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'];
+
+/** The elements that add anything to this shot's frames. */
+export function activeElements(shot: ResolvedShot): ElementName[] {
+  return ELEMENTS.filter((e) => {
+    if (!shot.elements[e].enabled) return false;
+    switch (e) {
+      case 'glow':
+        return shot.glow.fraction > 0;
+      case 'ghosts':
+        return Boolean(shot.lens) && shot.ghosts.enabled;
+      case 'starburst':
+        return shot.starburst.fraction > 0;
+      case 'veil':
+        return shot.veil.fraction > 0;
+      case 'streak':
+        return shot.streak.fraction > 0;
+      case 'dust':
+        return shot.dust.fraction > 0;
+      default:
+        return true;
+    }
+  });
+}
+
+/** The pass's file template: the element's name before the frame number. */
+export function passTemplate(template: string, element: ElementName): string {
+  const t = parseFrameTemplate(template);
+  if (typeof t === 'string') throw new Error(t);
+  const hashes = template.slice(t.prefix.length, template.length - t.suffix.length);
+  return `${t.prefix}${element}.${hashes}${t.suffix}`;
+}
+
+/** The shot with only one element on, writing to that element's sequence. */
+export function passShot(shot: ResolvedShot, element: ElementName): ResolvedShot {
+  const elements = Object.fromEntries(ELEMENTS.map((e) => [e, { ...shot.elements[e], enabled: e === element && shot.elements[e].enabled }])) as ResolvedShot['elements'];
+  const pass: ResolvedShot = { ...shot, elements, output: { ...shot.output, template: passTemplate(shot.output.template, element), passes: 'combined' } };
+  adoptShotAssets(pass, shotAssets(shot)); // the lens and kernels are the shot's; build them once
+  return pass;
+}
+
+/** The sequences a shot writes: its own, or one per active element. */
+export function outputSequences(shot: ResolvedShot): { name: string; shot: ResolvedShot }[] {
+  if (shot.output.passes === 'combined') return [{ name: 'combined', shot }];
+  return activeElements(shot).map((e) => ({ name: e, shot: passShot(shot, e) }));
+}
