@@ -7,6 +7,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import pngjs from 'pngjs';
 import { srgbDecode } from '../colour/srgb.js';
+import { InputError } from '../errors.js';
 import { parseFrameTemplate, framePath } from './frame-path.js';
 
 const { PNG } = pngjs;
@@ -25,6 +26,7 @@ const srgbTable = (() => {
 })();
 
 export function readPngLinear(file: string): LinearFrame {
+  if (/\.exr$/i.test(file)) throw new InputError(`${file}: reading OpenEXR frames back (for flash screening) is not supported yet; screen a PNG render of the shot, or rely on the screening done while rendering`);
   const png = PNG.sync.read(readFileSync(file), { skipRescale: true });
   const max = png.depth === 16 ? 65535 : 255;
   const linear = Math.abs((png.gamma || 0) - 1) < 1e-3;

@@ -3,7 +3,7 @@
 
 import { createHash } from 'node:crypto';
 import { writeFileAtomic } from '../io/atomic-write.js';
-import { encodePng } from '../io/png.js';
+import { encodeOutput } from '../io/encode-frame.js';
 import { reduceFrame, type FlashCells } from '../safety/flash.js';
 import type { FloatImage } from '../raster/image.js';
 import type { ResolvedShot } from '../shot/types.js';
@@ -34,8 +34,7 @@ export function runFrameJob(shot: ResolvedShot, job: FrameJob): FrameDone {
   const start = performance.now();
   const img = renderFrame(shot, job.frame, undefined, undefined, scratch);
   scratch = img;
-  const o = shot.output;
-  const png = encodePng(img, { bitDepth: o.format === 'png8' ? 8 : 16, transfer: o.transfer, alpha: o.alpha });
+  const png = encodeOutput(img, shot.output, shot.frame.pixelAspect);
   writeFileAtomic(job.file, png);
   const cells = reduceFrame(img.width, img.height, img.data, 4);
   return { frame: job.frame, file: job.file, bytes: png.length, sha256: sha256(png), ms: performance.now() - start, cells };

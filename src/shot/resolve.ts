@@ -638,9 +638,22 @@ class Resolver {
     if (!m) return undefined;
     const pathField = m.require('path', 'a frame-path template such as render/shot.####.png');
     const formatField = m.get('format');
-    const format = formatField ? formatField.oneOf(['png16', 'png8'] as const) : 'png16';
+    const format = formatField ? formatField.oneOf(['png16', 'png8', 'exr'] as const) : 'png16';
     const tf = m.get('transfer');
-    const transfer = tf ? tf.oneOf(['srgb', 'linear'] as const) : 'srgb';
+    const transfer = tf ? tf.oneOf(['srgb', 'linear'] as const) : format === 'exr' ? 'linear' : 'srgb';
+    if (format === 'exr' && transfer === 'srgb') tf!.error('OpenEXR files are scene-linear: give transfer: linear, or leave it out');
+    const ef = m.get('exr');
+    let exr: ResolvedOutput['exr'] | undefined = { type: 'half', compression: 'zip' };
+    if (ef) {
+      const em = ef.map('{type: half | float, compression: none | zips | zip}');
+      const t = em?.get('type');
+      const c = em?.get('compression');
+      const type = t ? t.oneOf(['half', 'float'] as const) : 'half';
+      const compression = c ? c.oneOf(['none', 'zips', 'zip'] as const) : 'zip';
+      em?.finish();
+      exr = em && type && compression ? { type, compression } : undefined;
+      if (format !== 'exr') ef.error('exr settings need format: exr');
+    }
     const af = m.get('alpha');
     const alpha = af ? af.oneOf(['none', 'premultiplied'] as const) : 'none';
     const pf = m.get('passes');
@@ -653,8 +666,9 @@ class Resolver {
       if (problem) pathField!.error(problem);
       else template = path.resolve(this.dir, rel);
     }
-    if (!template || !format || !transfer || !alpha || !passes) return undefined;
-    return { template, format, transfer, alpha, passes };
+    if (!template || !format || !transfer || !alpha || !passes || !exr) return undefined;
+    if (format === 'exr' && transfer === 'srgb') return undefined;
+    return { template, format, transfer, alpha, passes, exr };
   }
 }
 

@@ -8,7 +8,7 @@ import type { FrameRate } from '../timeline/frame-rate.js';
 import type { Key, PathShape } from '../timeline/track.js';
 import type { Vec2 } from '../timeline/path.js';
 
-export type OutputFormat = 'png16' | 'png8';
+export type OutputFormat = 'png16' | 'png8' | 'exr';
 export type Transfer = 'srgb' | 'linear';
 export type AlphaMode = 'none' | 'premultiplied';
 export type IntensityUnit = 'stops' | 'linear';
@@ -143,6 +143,8 @@ export interface ResolvedOutput {
   alpha: AlphaMode;
   /** one combined pass, or one sequence per element (x.glow.####.png, ...) for balancing later */
   passes: 'combined' | 'separate';
+  /** OpenEXR: pixel type and compression (format exr) */
+  exr: { type: 'half' | 'float'; compression: 'none' | 'zips' | 'zip' };
 }
 
 export interface ResolvedShot {

@@ -1,0 +1,186 @@
+// OpenEXR writer: single-part scanline files, written here from the OpenEXR file-layout
+// specification (no maintained encoder exists for Node; the registry has only readers).
+// Layout: magic 20000630, version 2; header attributes (name, type, size, value), a null byte;
+// the scanline offset table (uint64 per chunk); chunks of (int32 y, int32 size, data), each
+// holding its lines one after another, each line its channels in alphabetical order, little
+// endian. ZIP (16 lines a chunk) and ZIPS (1 line) reorder the bytes (evens, then odds), apply a
+// delta predictor, and zlib-deflate; a chunk that does not shrink is stored raw, as the
+// specification allows. Values are scene-linear and premultiplied (EXR's own convention).
+
+import { deflateSync } from 'node:zlib';
+import type { FloatImage } from '../raster/image.js';
+import { passAlpha } from './png.js';
+
+export type ExrPixelType = 'half' | 'float';
+export type ExrCompression = 'none' | 'zips' | 'zip';
+
+export interface ExrOptions {
+  type: ExrPixelType;
+  compression: ExrCompression;
+  /** with alpha: RGBA, alpha derived from the pass like the PNG writer's; without: RGB */
+  alpha: boolean;
+  pixelAspect: number;
+}
+
+const COMPRESSION_CODE: Record<ExrCompression, number> = { none: 0, zips: 2, zip: 3 };
+const LINES_PER_CHUNK: Record<ExrCompression, number> = { none: 1, zips: 1, zip: 16 };
+
+// float32 -> float16 bits, round to nearest even (IEEE 754 binary16)
+const f32 = new Float32Array(1);
+const u32 = new Uint32Array(f32.buffer);
+export function toHalf(v: number): number {
+  f32[0] = v;
+  const x = u32[0];
+  const sign = (x >>> 16) & 0x8000;
+  let exp = (x >>> 23) & 0xff;
+  let mant = x & 0x7fffff;
+  if (exp === 0xff) return sign | 0x7c00 | (mant ? 0x200 : 0); // inf or nan
+  exp = exp - 127 + 15;
+  if (exp >= 0x1f) return sign | 0x7c00; // overflow -> inf
+  if (exp <= 0) {
+    if (exp < -10) return sign; // too small -> zero
+    mant |= 0x800000;
+    const shift = 14 - exp;
+    let h = mant >>> shift;
+    const rest = mant & ((1 << shift) - 1);
+    const half = 1 << (shift - 1);
+    if (rest > half || (rest === half && h & 1)) h++;
+    return sign | h;
+  }
+  let h = (exp << 10) | (mant >>> 13);
+  const rest = mant & 0x1fff;
+  if (rest > 0x1000 || (rest === 0x1000 && h & 1)) h++; // may carry into the exponent: still right
+  return sign | h;
+}
+
+class Writer {
+  private chunks: Buffer[] = [];
+  bytes(b: Buffer | Uint8Array) {
+    this.chunks.push(Buffer.from(b));
+  }
+  str(s: string) {
+    this.bytes(Buffer.from(`${s}\0`, 'latin1'));
+  }
+  i32(v: number) {
+    const b = Buffer.alloc(4);
+    b.writeInt32LE(v, 0);
+    this.bytes(b);
+  }
+  f32(v: number) {
+    const b = Buffer.alloc(4);
+    b.writeFloatLE(v, 0);
+    this.bytes(b);
+  }
+  u8(v: number) {
+    this.bytes(Buffer.from([v]));
+  }
+  attr(name: string, type: string, value: Buffer) {
+    this.str(name);
+    this.str(type);
+    this.i32(value.length);
+    this.bytes(value);
+  }
+  done(): Buffer {
+    return Buffer.concat(this.chunks);
+  }
+}
+
+function box2i(x0: number, y0: number, x1: number, y1: number): Buffer {
+  const b = Buffer.alloc(16);
+  [x0, y0, x1, y1].forEach((v, i) => b.writeInt32LE(v, i * 4));
+  return b;
+}
+
+function floats(...vs: number[]): Buffer {
+  const b = Buffer.alloc(vs.length * 4);
+  vs.forEach((v, i) => b.writeFloatLE(v, i * 4));
+  return b;
+}
+
+/** ZIP/ZIPS preprocessing: bytes split into evens then odds, then a delta predictor. */
+export function zipPredict(raw: Buffer): Buffer {
+  const n = raw.length;
+  const t = Buffer.alloc(n);
+  let a = 0;
+  let b = (n + 1) >> 1;
+  for (let i = 0; i < n; i++) {
+    if (i & 1) t[b++] = raw[i];
+    else t[a++] = raw[i];
+  }
+  let prev = t[0];
+  for (let i = 1; i < n; i++) {
+    const d = (t[i] - prev + 128 + 256) & 0xff;
+    prev = t[i];
+    t[i] = d;
+  }
+  return t;
+}
+
+export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
+  const { width, height } = img;
+  const channels = opts.alpha ? ['A', 'B', 'G', 'R'] : ['B', 'G', 'R'];
+  const size = opts.type === 'half' ? 2 : 4;
+  const w = new Writer();
+  w.bytes(Buffer.from([0x76, 0x2f, 0x31, 0x01]));
+  w.i32(2); // version 2, single-part scanline, short names
+  // channels: name, pixel type (1 half, 2 float), pLinear, 3 reserved, x and y sampling
+  const ch = new Writer();
+  for (const c of channels) {
+    ch.str(c);
+    ch.i32(opts.type === 'half' ? 1 : 2);
+    ch.bytes(Buffer.from([0, 0, 0, 0]));
+    ch.i32(1);
+    ch.i32(1);
+  }
+  ch.u8(0);
+  w.attr('channels', 'chlist', ch.done());
+  // Rec.709 / sRGB primaries and D65 white (IEC 61966-2-1)
+  w.attr('chromaticities', 'chromaticities', floats(0.64, 0.33, 0.3, 0.6, 0.15, 0.06, 0.3127, 0.329));
+  w.attr('compression', 'compression', Buffer.from([COMPRESSION_CODE[opts.compression]]));
+  w.attr('dataWindow', 'box2i', box2i(0, 0, width - 1, height - 1));
+  w.attr('displayWindow', 'box2i', box2i(0, 0, width - 1, height - 1));
+  w.attr('lineOrder', 'lineOrder', Buffer.from([0])); // increasing y
+  w.attr('pixelAspectRatio', 'float', floats(opts.pixelAspect));
+  w.attr('screenWindowCenter', 'v2f', floats(0, 0));
+  w.attr('screenWindowWidth', 'float', floats(1));
+  w.u8(0); // end of header
+  const header = w.done();
+
+  const per = LINES_PER_CHUNK[opts.compression];
+  const count = Math.ceil(height / per);
+  const lineBytes = width * channels.length * size;
+  const blocks: Buffer[] = [];
+  const src = img.data;
+  for (let c = 0; c < count; c++) {
+    const y0 = c * per;
+    const lines = Math.min(per, height - y0);
+    const raw = Buffer.alloc(lines * lineBytes);
+    let o = 0;
+    for (let y = y0; y < y0 + lines; y++) {
+      for (const name of channels) {
+        for (let x = 0; x < width; x++) {
+          const i = (y * width + x) * 4;
+          const v = name === 'A' ? passAlpha(src[i], src[i + 1], src[i + 2]) : src[i + { R: 0, G: 1, B: 2 }[name as 'R' | 'G' | 'B']];
+          if (size === 2) o = raw.writeUInt16LE(toHalf(v), o);
+          else o = raw.writeFloatLE(v, o);
+        }
+      }
+    }
+    let data = raw;
+    if (opts.compression !== 'none') {
+      const z = deflateSync(zipPredict(raw), { level: 6 });
+      if (z.length < raw.length) data = z;
+    }
+    const head = Buffer.alloc(8);
+    head.writeInt32LE(y0, 0);
+    head.writeInt32LE(data.length, 4);
+    blocks.push(Buffer.concat([head, data]));
+  }
+  const table = Buffer.alloc(count * 8);
+  let offset = header.length + table.length;
+  blocks.forEach((b, i) => {
+    table.writeBigUInt64LE(BigInt(offset), i * 8);
+    offset += b.length;
+  });
+  return Buffer.concat([header, table, ...blocks]);
+}

@@ -1,0 +1,108 @@
+// OpenEXR output, read back by independent tools from Debian (OpenEXR's exrheader, OpenImageIO's
+// oiiotool and idiff; installed by scripts/install-test-tools.sh), and half floats against
+// IEEE 754 binary16.
+
+import { spawnSync } from 'node:child_process';
+import { writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { encodeExr, toHalf } from '../../src/io/exr.js';
+import { FloatImage } from '../../src/raster/image.js';
+import { cli, tempDir } from '../helpers.js';
+
+const tool = (cmd: string, args: string[]) => {
+  const r = spawnSync(cmd, args, { encoding: 'utf8' });
+  if (r.error) throw r.error;
+  return { code: r.status, out: r.stdout + r.stderr };
+};
+
+function ramp(): FloatImage {
+  const img = new FloatImage(37, 21);
+  for (let y = 0; y < 21; y++) for (let x = 0; x < 37; x++) img.data.set([(x / 36) * 4, y / 20, 0.25, 0], (y * 37 + x) * 4);
+  return img;
+}
+
+describe('half floats (IEEE 754 binary16)', () => {
+  const cases: [number, number][] = [
+    [1, 0x3c00],
+    [-2, 0xc000],
+    [0.5, 0x3800],
+    [65504, 0x7bff], // largest finite half
+    [65520, 0x7c00], // rounds up to infinity
+    [2 ** -24, 0x0001], // smallest subnormal
+    [2 ** -25, 0x0000], // a tie between 0 and the smallest subnormal: to even, 0
+    [0.1, 0x2e66],
+    [Infinity, 0x7c00],
+  ];
+  for (const [v, h] of cases) it(`${v} -> 0x${h.toString(16).padStart(4, '0')}`, () => expect(toHalf(v)).toBe(h));
+  it('NaN stays NaN', () => expect(toHalf(NaN) & 0x7c00).toBe(0x7c00));
+});
+
+describe('OpenEXR files', () => {
+  it('exrheader reads the attributes the file layout requires, and Rec.709 chromaticities', () => {
+    const f = path.join(tempDir(), 'h.exr');
+    writeFileSync(f, encodeExr(ramp(), { type: 'half', compression: 'zip', alpha: true, pixelAspect: 2 }));
+    const { code, out } = tool('exrheader', [f]);
+    expect(code).toBe(0);
+    expect(out).toContain('channels (type chlist):\n    A, 16-bit floating-point, sampling 1 1\n    B, 16-bit floating-point, sampling 1 1\n    G, 16-bit floating-point, sampling 1 1\n    R, 16-bit floating-point, sampling 1 1');
+    expect(out).toContain('compression (type compression): zip, multi-scanline blocks');
+    expect(out).toContain('dataWindow (type box2i): (0 0) - (36 20)');
+    expect(out).toContain('displayWindow (type box2i): (0 0) - (36 20)');
+    expect(out).toContain('lineOrder (type lineOrder): increasing y');
+    expect(out).toContain('pixelAspectRatio (type float): 2');
+    expect(out).toContain('screenWindowCenter (type v2f): (0 0)');
+    expect(out).toContain('screenWindowWidth (type float): 1');
+    expect(out).toContain('red   (0.64 0.33)');
+    expect(out).toContain('white (0.3127 0.329)');
+  });
+
+  for (const [type, compression] of [['half', 'none'], ['half', 'zips'], ['half', 'zip'], ['float', 'none'], ['float', 'zip']] as const) {
+    it(`oiiotool reads ${type} / ${compression} back to the values written`, () => {
+      const f = path.join(tempDir(), 'v.exr');
+      writeFileSync(f, encodeExr(ramp(), { type, compression, alpha: false, pixelAspect: 1 }));
+      const { code, out } = tool('oiiotool', ['--stats', f]);
+      expect(code).toBe(0);
+      expect(out).toContain(`37 x   21, 3 channel, ${type} openexr`);
+      const row = (name: string) => out.split('\n').find((l) => l.includes(`Stats ${name}:`))!.split(':')[1].trim().split(/\s+/).slice(0, 3).map(Number);
+      expect(row('Min')).toEqual([0, 0, 0.25]);
+      expect(row('Max')).toEqual([4, 1, 0.25]);
+      // the ramps average 2 and 0.5 exactly; half storage is within its precision (1 part in 2048)
+      const avg = row('Avg');
+      expect(Math.abs(avg[0] - 2)).toBeLessThan(type === 'float' ? 1e-6 : 2 / 2048);
+      expect(Math.abs(avg[1] - 0.5)).toBeLessThan(type === 'float' ? 1e-6 : 0.5 / 2048);
+    });
+  }
+
+  it('a rendered frame as EXR equals the same frame as linear 16-bit PNG (idiff, within half precision)', async () => {
+    const dir = tempDir();
+    const shot = path.join(dir, 's.yaml');
+    writeFileSync(
+      shot,
+      `version: 1
+frame: { width: 64, height: 36, rate: 24, first: 1, last: 1 }
+lights: [{ name: a, position: [30, 18], intensity: -1, radius: 6 }]
+flare: { starburst: { enabled: false } }   # its peak would pass 1, where the PNG clips
+output: { path: "o/f.####.exr", format: exr }
+`,
+    );
+    expect((await cli(['still', shot, '--frame', '1', '--out', path.join(dir, 'a.exr')])).code).toBe(0);
+    expect((await cli(['still', shot, '--frame', '1', '--out', path.join(dir, 'a.png')])).code).toBe(0);
+    // values stay below 1 here, so the PNG does not clip; half rounds by at most 2^-12 below 1 and
+    // 16-bit quantising by 2^-17: 0.0003 bounds both
+    const { code, out } = tool('idiff', ['-fail', '0.0003', '-warn', '0.0003', path.join(dir, 'a.exr'), path.join(dir, 'a.png')]);
+    expect(out).toContain('PASS');
+    expect(code).toBe(0);
+  });
+
+  it('render writes an EXR sequence; srgb transfer with exr is refused', async () => {
+    const dir = tempDir();
+    const shot = path.join(dir, 's.yaml');
+    writeFileSync(shot, `version: 1\nframe: { width: 32, height: 18, rate: 24, first: 1, last: 2 }\nlights: [{ name: a, position: [16, 9], intensity: 0 }]\noutput: { path: "o/f.####.exr", format: exr, exr: { type: float, compression: zips } }\n`);
+    expect((await cli(['render', shot, '--quiet'])).code).toBe(0);
+    expect(tool('oiiotool', ['--info', path.join(dir, 'o', 'f.0002.exr')]).out).toContain('32 x   18, 3 channel, float openexr');
+    writeFileSync(shot, `version: 1\nframe: { width: 32, height: 18, rate: 24, first: 1, last: 2 }\nlights: [{ name: a, position: [16, 9], intensity: 0 }]\noutput: { path: "o/f.####.exr", format: exr, transfer: srgb }\n`);
+    const r = await cli(['check', shot]);
+    expect(r.code).toBe(3);
+    expect(r.stderr).toContain('output.transfer: OpenEXR files are scene-linear: give transfer: linear, or leave it out');
+  });
+});
