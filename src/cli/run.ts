@@ -172,9 +172,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         io.stderr(`${result.failed.length} of ${total} frames failed (${result.failed.map((f) => f.frame).join(', ')}); the other ${result.written.length + result.skipped.length} are in place\n`);
         setExit(ExitCode.framesFailed);
       } else if (progress) {
-        const skipped = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
-      void skipped;
-        const kept = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
+          const kept = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
         const where = sequences.length > 1 ? `${sequences.length} passes (${sequences.map((q) => q.name).join(', ')}) beside ${dest}` : dest;
         io.stderr(`rendered ${result.written.length} frames to ${where}${kept} in ${seconds.toFixed(1)} s\n`);
       }
