@@ -1,6 +1,6 @@
 // Shared test helpers: temporary folders and a minimal valid shot.
 
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterEach } from 'vitest';
@@ -25,6 +25,13 @@ export async function cli(args: string[]): Promise<{ code: number; stdout: strin
   let stderr = '';
   const code = await run(args, { stdout: (s) => (stdout += s), stderr: (s) => (stderr += s), stderrIsTTY: false });
   return { code, stdout, stderr };
+}
+
+/** Every PNG in a folder, by name, as base64 (to compare renders byte for byte). */
+export function pngBytes(folder: string): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const f of readdirSync(folder).filter((n) => n.endsWith('.png')).sort()) out[f] = readFileSync(path.join(folder, f)).toString('base64');
+  return out;
 }
 
 export function writeFiles(dir: string, files: Record<string, string>): void {

@@ -8,7 +8,7 @@ import { writeFileAtomic } from '../io/atomic-write.js';
 import { loadShot } from '../io/load-shot.js';
 import { checkOutputTemplate } from '../shot/resolve.js';
 import type { ResolvedShot } from '../shot/types.js';
-import { renderSequence, type FrameRange } from '../render/sequence.js';
+import { renderSequence, shardFrames, type FrameRange } from '../render/sequence.js';
 import { renderFrame } from '../render/render-frame.js';
 import { availableParallelism } from 'node:os';
 import type { Shard } from '../io/manifest.js';
@@ -117,8 +117,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       }
       const shard = opts.shard ? parseShard(opts.shard) : undefined;
       const jobs = opts.jobs ?? availableParallelism();
-      let total = 0;
-      for (let f = frames.first; f <= frames.last; f++) if (!shard || (f - frames.first) % shard.n === shard.k) total++;
+      let total = shardFrames(frames, shard).length;
       const json = opts.progress === 'json';
       const progress = opts.quiet || json ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
       const started = performance.now();
@@ -379,7 +378,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         template = path.resolve(arg);
         frames = framesOnDisk(template);
         if (frames.length === 0) throw new InputError(`${arg}: no frames on disk match this template`);
-        const r = parseFrameRate(opts.rate === undefined ? 24 : /^\d+$/.test(opts.rate) ? Number(opts.rate) : opts.rate.includes('/') ? opts.rate : Number(opts.rate));
+        const r = parseFrameRate(opts.rate === undefined ? 24 : opts.rate.includes('/') ? opts.rate : Number(opts.rate));
         if (typeof r === 'string') throw new UsageError(`--rate: ${r}, found "${opts.rate}"`);
         rate = r;
         tc = { rate, dropFrame: false, startFrames: frames[0], first: frames[0] };

@@ -14,8 +14,6 @@ export class MatteProvider {
   private readonly onDisk = new Map<string, number[]>();
   private readonly cache = new Map<string, MatteImage>();
 
-  constructor(private readonly shot: ResolvedShot) {}
-
   frames(matte: ResolvedMatte): number[] {
     let f = this.onDisk.get(matte.name);
     if (!f) {
@@ -63,7 +61,7 @@ export class MatteProvider {
 /** Problems with a shot's mattes found on disk: none there, or the wrong size (located). */
 export function checkMattes(shot: ResolvedShot): { loc: ResolvedMatte['at']; path: string; message: string }[] {
   const problems: { loc: ResolvedMatte['at']; path: string; message: string }[] = [];
-  const provider = new MatteProvider(shot);
+  const provider = new MatteProvider();
   for (const m of shot.mattes) {
     const frames = provider.frames(m);
     if (frames.length === 0) {

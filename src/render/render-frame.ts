@@ -60,7 +60,7 @@ function coatingTint(assets: ShotAssets): [number, number, number] {
 export function matteProvider(shot: ResolvedShot): MatteProvider {
   let p = providers.get(shot);
   if (!p) {
-    p = new MatteProvider(shot);
+    p = new MatteProvider();
     providers.set(shot, p);
   }
   return p;

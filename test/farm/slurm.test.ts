@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { tempDir } from '../helpers.js';
+import { pngBytes, tempDir } from '../helpers.js';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 const bin = path.join(root, 'bin', 'straylight.js');
@@ -42,11 +42,6 @@ flare: { ghosts: { quality: draft } }
 output: { path: "${out}/f.####.png" }
 `;
 
-function frames(folder: string): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const f of readdirSync(folder).filter((n) => n.endsWith('.png')).sort()) out[f] = readFileSync(path.join(folder, f)).toString('base64');
-  return out;
-}
 
 describe('farm on Slurm', () => {
   it('renders a shot as 4 array tasks, verifies it in a dependent job, and matches a local render byte for byte', () => {
@@ -71,8 +66,8 @@ describe('farm on Slurm', () => {
     // each array task rendered its own shard
     expect(readdirSync(path.join(dir, 'farm')).filter((f) => f.includes('.manifest.shard-')).sort()).toEqual([0, 1, 2, 3].map((k) => `f.manifest.shard-${k}-of-4.json`));
     execFileSync(process.execPath, [bin, 'render', path.join(dir, 'local.yaml'), '--quiet']);
-    const local = frames(path.join(dir, 'local'));
+    const local = pngBytes(path.join(dir, 'local'));
     expect(Object.keys(local)).toHaveLength(12);
-    expect(frames(path.join(dir, 'farm'))).toEqual(local);
+    expect(pngBytes(path.join(dir, 'farm'))).toEqual(local);
   }, 180_000);
 });

@@ -11,7 +11,7 @@ import { manifestPath, readManifests } from '../../src/io/manifest.js';
 import { renderSequence } from '../../src/render/sequence.js';
 import { resolveShot } from '../../src/shot/resolve.js';
 import { presetNames, presetPath } from '../../src/io/presets.js';
-import { tempDir } from '../helpers.js';
+import { pngBytes, tempDir } from '../helpers.js';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 const bin = path.join(root, 'bin', 'straylight.js');
@@ -34,11 +34,6 @@ function shotIn(dir: string) {
   return resolveShot(SHOT, path.join(dir, 'shot.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
 }
 
-function bytesOf(folder: string): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const f of readdirSync(folder).filter((n) => n.endsWith('.png')).sort()) out[f] = readFileSync(path.join(folder, f)).toString('base64');
-  return out;
-}
 
 describe('parallel rendering', () => {
   it('gives byte-identical frames with 1, 2 and 4 workers', async () => {
@@ -48,7 +43,7 @@ describe('parallel rendering', () => {
       const r = await renderSequence(shotIn(dir), { jobs });
       expect(r.failed).toEqual([]);
       expect(r.written).toHaveLength(12);
-      outs.push(bytesOf(path.join(dir, 'out')));
+      outs.push(pngBytes(path.join(dir, 'out')));
     }
     expect(Object.keys(outs[0])).toHaveLength(12);
     expect(outs[1]).toEqual(outs[0]);
@@ -61,7 +56,7 @@ describe('parallel rendering', () => {
     const split = tempDir();
     const shot = shotIn(split);
     for (const k of [2, 0, 1]) await renderSequence(shot, { shard: { k, n: 3 }, jobs: 2 });
-    expect(bytesOf(path.join(split, 'out'))).toEqual(bytesOf(path.join(whole, 'out')));
+    expect(pngBytes(path.join(split, 'out'))).toEqual(pngBytes(path.join(whole, 'out')));
     // each shard keeps its own manifest
     expect(readManifests(path.join(split, 'out', 'f.####.png')).map((m) => path.basename(m.file))).toEqual([
       'f.manifest.shard-0-of-3.json',
@@ -144,7 +139,7 @@ describe('parallel rendering', () => {
     for (const f of named) expect(() => decode(readFileSync(path.join(out, f)))).not.toThrow();
     const r = spawnSync(process.execPath, [bin, 'render', path.join(dir, 'shot.yaml'), '--jobs', '2', '--quiet']);
     expect(r.status).toBe(0);
-    expect(bytesOf(out)).toEqual(bytesOf(path.join(ref, 'out')));
+    expect(pngBytes(out)).toEqual(pngBytes(path.join(ref, 'out')));
     expect(existsSync(manifestPath(path.join(out, 'f.####.png')))).toBe(true);
   });
 });
