@@ -41,7 +41,7 @@ export class MatteProvider {
     const file = expandFramePath(matte.template, f);
     let img: MatteImage;
     try {
-      img = decodeMatte(file, matte.channel);
+      img = decodeMatte(file, matte.channel, matte.kind);
     } catch (e) {
       throw new InputError(`matte "${matte.name}": cannot read ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
     }
@@ -70,7 +70,7 @@ export function checkMattes(shot: ResolvedShot): { loc: ResolvedMatte['at']; pat
     }
     let img: MatteImage | undefined;
     try {
-      img = decodeMatte(expandFramePath(m.template, frames[0]), m.channel);
+      img = decodeMatte(expandFramePath(m.template, frames[0]), m.channel, m.kind);
     } catch (e) {
       problems.push({ loc: m.at, path: m.atPath, message: `cannot read ${expandFramePath(m.template, frames[0])}: ${(e as Error).message}` });
       continue;

@@ -11,7 +11,7 @@ import { addDust, dustTexture } from '../elements/dust.js';
 import { binSizeMm, starburstKernel, type StarburstKernel } from '../optics/diffraction.js';
 import { MatteProvider } from '../io/matte-provider.js';
 import { prepareLens, type LensSystem } from '../optics/ghost-system.js';
-import { alphaCoverage, depthCoverage, diskVisibility, sample, type CoverageLookup } from '../occlusion/visibility.js';
+import { alphaCoverage, depthCoverage, diskVisibility, type CoverageLookup } from '../occlusion/visibility.js';
 import { FloatImage } from '../raster/image.js';
 import type { ResolvedLight, ResolvedShot } from '../shot/types.js';
 import { evalScalar } from '../timeline/track.js';
@@ -82,7 +82,7 @@ export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number,
       out.push(scaled(alphaCoverage(img, m.invert, light.offFrame)));
     } else {
       const depth = evalScalar(light.depth!, t);
-      out.push(scaled(depthCoverage((x, y) => sample(img, x, y, light.offFrame), depth, m.depth!.tolerance, light.offFrame)));
+      out.push(scaled(depthCoverage(img, depth, m.depth!.tolerance, light.offFrame)));
     }
   }
   return out;

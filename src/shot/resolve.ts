@@ -565,8 +565,14 @@ class Resolver {
         if (typeof t === 'string') pathField!.error(t);
         else template = path.resolve(this.dir, rel);
       }
+      const isExr = template !== undefined && path.extname(template).toLowerCase() === '.exr';
       const ch = m.get('channel');
-      const channel = ch ? ch.oneOf(['r', 'g', 'b', 'a'] as const) : 'r';
+      let channel: string | undefined;
+      if (ch && isExr) {
+        channel = ch.string('an OpenEXR channel name, such as Z, A or depth.Z');
+        if (channel !== undefined && !/^[\x21-\x7e]{1,255}$/.test(channel)) ch.error(`"${channel}" is not an OpenEXR channel name`);
+      } else if (ch) channel = ch.oneOf(['r', 'g', 'b', 'a'] as const);
+      else channel = isExr ? undefined : 'r';
       const off = m.get('offset');
       const offset = off ? off.number({ integer: true, min: -1e9, max: 1e9 }) : 0;
       const bf = m.get('before');
@@ -584,7 +590,8 @@ class Resolver {
       const scale = m.get('scale');
       const tol = m.get('tolerance');
       if (kind === 'depth') {
-        const encoding = enc ? enc.oneOf(['normalised', 'inverted', 'linear'] as const) : 'normalised';
+        // OpenEXR depth is scene depth as rendered; PNG depth is a [0, 1] code between near and far
+        const encoding = enc ? enc.oneOf(['normalised', 'inverted', 'linear'] as const) : isExr ? 'linear' : 'normalised';
         const n = near ? near.number({ min: 0, max: 1e12 }) : 0;
         const fa = far ? far.number({ min: 0, max: 1e12 }) : 1;
         const sc = scale ? scale.number({ min: 0, minExclusive: true, max: 1e12 }) : 1;
@@ -600,12 +607,12 @@ class Resolver {
         }
       }
       m.finish();
-      if (!name || !kind || !template || !channel || offset === undefined || !before || !after || !resize || (kind === 'depth' && !depth)) return undefined;
+      if (!name || !kind || !template || (ch && channel === undefined) || offset === undefined || !before || !after || !resize || (kind === 'depth' && !depth)) return undefined;
       return {
         name,
         kind,
         template,
-        channel,
+        ...(channel !== undefined ? { channel } : {}),
         offset,
         before,
         after,

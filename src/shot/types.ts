@@ -33,7 +33,8 @@ export interface ResolvedMatte {
   kind: 'alpha' | 'depth';
   /** absolute frame-path template */
   template: string;
-  channel: 'r' | 'g' | 'b' | 'a';
+  /** r/g/b/a (PNG), any channel name (OpenEXR); undefined: the format's default (PNG r; EXR Z or A) */
+  channel?: string;
   /** matte frame = shot frame + offset */
   offset: number;
   /** outside the matte sequence's frames: hold its first/last frame, or nothing covers */

@@ -72,14 +72,24 @@ describe('disk visibility', () => {
 
 describe('depth mattes', () => {
   const wall = (depth: number): MatteImage => ({ width: 50, height: 50, values: new Float32Array(2500).fill(depth) });
-  const depthAt = (m: MatteImage) => (x: number, y: number) => sample(m, x, y, 'clear');
   it('an occluder behind the light does not occlude; one in front does', () => {
-    expect(diskVisibility(25, 25, 5, [depthCoverage(depthAt(wall(150)), 100, 1, 'clear')])).toBe(1);
-    expect(diskVisibility(25, 25, 5, [depthCoverage(depthAt(wall(50)), 100, 1, 'clear')])).toBe(0);
+    expect(diskVisibility(25, 25, 5, [depthCoverage(wall(150), 100, 1, 'clear')])).toBe(1);
+    expect(diskVisibility(25, 25, 5, [depthCoverage(wall(50), 100, 1, 'clear')])).toBe(0);
   });
   it('the tolerance softens it: at the light\'s own depth half covered, a quarter tolerance in front 75%', () => {
-    expect(diskVisibility(25, 25, 5, [depthCoverage(depthAt(wall(100)), 100, 10, 'clear')])).toBeCloseTo(0.5, 9);
-    expect(diskVisibility(25, 25, 5, [depthCoverage(depthAt(wall(97.5)), 100, 10, 'clear')])).toBeCloseTo(0.25, 9);
+    expect(diskVisibility(25, 25, 5, [depthCoverage(wall(100), 100, 10, 'clear')])).toBeCloseTo(0.5, 9);
+    expect(diskVisibility(25, 25, 5, [depthCoverage(wall(97.5), 100, 10, 'clear')])).toBeCloseTo(0.25, 9);
+  });
+  it('compares each depth pixel before blending (percentage-closer filtering, Reeves et al. 1987): a silhouette covers as much as the same edge as alpha', () => {
+    // a mast at 20 in front of a sky at 1e9, its edge through the light's disk
+    const edge = (near: number, far: number): MatteImage => {
+      const values = new Float32Array(2500);
+      for (let y = 0; y < 50; y++) for (let x = 0; x < 50; x++) values[y * 50 + x] = x < 23 + y / 10 ? near : far;
+      return { width: 50, height: 50, values };
+    };
+    const alpha = diskVisibility(25, 25, 5, [alphaCoverage(edge(1, 0), false, 'clear')]);
+    expect(alpha).toBeGreaterThan(0.3);
+    expect(diskVisibility(25, 25, 5, [depthCoverage(edge(20, 1e9), 100, 1, 'clear')])).toBeCloseTo(alpha, 12);
   });
 });
 
