@@ -19,7 +19,7 @@ import { prepareLens } from '../optics/ghost-system.js';
 import { formatLensReport, lensPlot, lensReport } from '../optics/report.js';
 import { existsSync } from 'node:fs';
 import { FlashAnalyser, type FlashReport } from '../safety/flash.js';
-import { framesOnDisk, readPngLinear } from '../io/read-png.js';
+import { framesOnDisk, readFrameLinear } from '../io/read-frame.js';
 import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
 import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 import { formatFlashReport } from './flash-report.js';
@@ -177,8 +177,6 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       }
       if (!result.interrupted && sharded) {
         if (!opts.quiet) io.stderr(`flash screening needs every frame in order: run straylight flashes ${shotFile} when all shards are done\n`);
-      } else if (!result.interrupted && result.failed.length === 0 && sequences.length > 1 && shot.output.format === 'exr') {
-        if (!opts.quiet) io.stderr('flash screening of separate OpenEXR passes is not supported yet: render a PNG version to screen it\n');
       } else if (!result.interrupted && result.failed.length === 0) {
         // separate passes are judged together, as the viewer will see them: read back and summed
         const report = sequences.length === 1 ? analyser.report() : screenSequences(sequences.map((q) => (template && q.name !== 'combined' ? passTemplate(template, q.name as never) : q.shot.output.template)), frames, shot).report();
@@ -221,9 +219,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           }
           entry.status = interrupted ? 'interrupted' : entry.failed.length ? 'frames-failed' : 'ok';
           // screen the whole sequence as it is on disk now (kept frames included), passes summed
-          if (entry.status === 'ok' && shot.output.format === 'exr') {
-            entry.warnings.push('not screened for flashing here: reading OpenEXR frames back is not supported yet');
-          } else if (entry.status === 'ok') {
+          if (entry.status === 'ok') {
             entry.flashes = screenSequences(sequences.map((q) => q.shot.output.template), { first: shot.frame.first, last: shot.frame.last }, shot).report().spans;
           }
           const mid = Math.round((shot.frame.first + shot.frame.last) / 2);
@@ -383,25 +379,25 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         rate = r;
         tc = { rate, dropFrame: false, startFrames: frames[0], first: frames[0] };
       }
-      const first = readPngLinear(expandFramePath(template, frames[0]));
+      const first = readFrameLinear(expandFramePath(template, frames[0]));
       for (const other of (templates ?? []).slice(1)) {
-        const p = readPngLinear(expandFramePath(other, frames[0]));
+        const p = readFrameLinear(expandFramePath(other, frames[0]));
         for (let i = 0; i < first.rgb.length; i++) first.rgb[i] += p.rgb[i];
       }
       const black = new FlashAnalyser(first.width, first.height, rate);
       const plated = opts.plate ? new FlashAnalyser(first.width, first.height, rate) : undefined;
       for (const f of frames) {
-        const frame = f === frames[0] ? first : readPngLinear(expandFramePath(template, f));
+        const frame = f === frames[0] ? first : readFrameLinear(expandFramePath(template, f));
         // separate passes are judged summed, as they will be seen
         for (const other of (templates ?? []).slice(1)) {
-          const p = readPngLinear(expandFramePath(other, f));
+          const p = readFrameLinear(expandFramePath(other, f));
           for (let i = 0; i < frame.rgb.length; i++) frame.rgb[i] += p.rgb[i];
         }
         black.addFrame(f, frame.rgb, 3);
         if (plated) {
           const plateFile = expandFramePath(path.resolve(opts.plate!), f);
           if (!existsSync(plateFile)) throw new InputError(`--plate: no plate frame ${plateFile}`);
-          const plate = readPngLinear(plateFile);
+          const plate = readFrameLinear(plateFile);
           if (plate.width !== frame.width || plate.height !== frame.height) {
             throw new InputError(`--plate: ${plateFile} is ${plate.width}x${plate.height}, the pass is ${frame.width}x${frame.height}`);
           }
@@ -468,7 +464,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
 
 /** A small sRGB PNG of a rendered frame, as a data URI (nearest-pixel reduction to 320 wide). */
 function thumbnail(file: string): string {
-  const f = readPngLinear(file);
+  const f = readFrameLinear(file);
   const w = Math.min(320, f.width);
   const h = Math.max(1, Math.round((f.height * w) / f.width));
   const img = new FloatImage(w, h);
@@ -489,7 +485,7 @@ function screenSequences(templates: string[], range: FrameRange, shot: ResolvedS
   for (let f = range.first; f <= range.last; f++) {
     let sum: Float32Array | undefined;
     for (const t of templates) {
-      const p = readPngLinear(expandFramePath(t, f));
+      const p = readFrameLinear(expandFramePath(t, f));
       if (!sum) sum = p.rgb;
       else for (let i = 0; i < sum.length; i++) sum[i] += p.rgb[i];
     }

@@ -13,7 +13,7 @@ import path from 'node:path';
 import type { ResolvedShot } from '../shot/types.js';
 import { writeFileAtomic } from './atomic-write.js';
 import { expandFramePath, parseFrameTemplate } from './frame-path.js';
-import { framesOnDisk } from './read-png.js';
+import { framesOnDisk } from './read-frame.js';
 
 export const TOOL_VERSION = 'straylight 0.1.0';
 

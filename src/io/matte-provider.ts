@@ -6,7 +6,7 @@ import { InputError } from '../errors.js';
 import { decodeMatte, type MatteImage } from '../occlusion/matte.js';
 import type { ResolvedMatte, ResolvedShot } from '../shot/types.js';
 import { expandFramePath } from './frame-path.js';
-import { framesOnDisk } from './read-png.js';
+import { framesOnDisk } from './read-frame.js';
 
 const CACHE = 8;
 

@@ -11,7 +11,7 @@ import { cli, tempDir } from '../helpers.js';
 
 
 /** A big light switching between two levels (linear) every 3 frames: 4 Hz at 24 fps. */
-function strobeShot(dir: string, high: number, low: number): string {
+function strobeShot(dir: string, high: number, low: number, output = 'output: { path: "out/s.####.png" }'): string {
   const keys = [...Array(16)].map((_, k) => `      - { frame: ${1 + 3 * k}, value: ${k % 2 ? low : high}, ease: hold }`).join('\n');
   const f = path.join(dir, 'strobe.yaml');
   writeFileSync(
@@ -27,7 +27,7 @@ lights:
 ${keys}
 flare:
   glow: { fraction: 0 }
-output: { path: "out/s.####.png" }
+${output}
 `,
   );
   return f;
@@ -56,6 +56,16 @@ describe('flash screening in the CLI', () => {
     const r = await cli(['flashes', f]);
     expect(r.code).toBe(ExitCode.flashes);
     expect(r.stdout).toMatch(/^flash screening: 48 frames, 1-48 at 24 fps, over black\nFLAGGED general flashing: frames 1-48/);
+  });
+
+  it('OpenEXR passes are read back and screened too, separate passes summed', async () => {
+    const f = strobeShot(tempDir(), 1, 0.02, 'output: { path: "out/s.####.exr", format: exr, passes: separate }');
+    const r = await cli(['render', f, '--quiet']);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toMatch(/FLAGGED general flashing: frames 1-48 \(10:00:00:00 - 10:00:01:23\), up to 4\.0 flashes a second/);
+    const again = await cli(['flashes', path.join(path.dirname(f), 'out', 's.core.####.exr')]);
+    expect(again.code).toBe(ExitCode.flashes);
+    expect(again.stdout).toMatch(/FLAGGED general flashing: frames 1-48/);
   });
 
   it('flashes SHOT refuses a shot whose frames are not rendered yet', async () => {

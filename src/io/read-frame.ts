@@ -1,13 +1,14 @@
-// Reading PNG frames back (rendered passes, plates) as display-referred linear RGB, through pngjs.
-// The transfer is taken from the file: gAMA 1.0 means linear, anything else is decoded as sRGB
-// (what straylight and most tools write). Straight alpha is applied, so a pass with alpha reads as
-// the light it adds (colour x alpha).
+// Reading frames back (rendered passes, plates) as linear RGB, premultiplied: the light each pixel
+// adds. PNG through pngjs: the transfer is taken from the file (gAMA 1.0 means linear, anything else
+// is decoded as sRGB, what straylight and most tools write) and straight alpha is applied. OpenEXR
+// through our reader: R, G, B (or Y for grey) as stored, already linear and premultiplied.
 
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import pngjs from 'pngjs';
 import { srgbDecode } from '../colour/srgb.js';
 import { InputError } from '../errors.js';
+import { decodeExr, ExrFormatError } from './exr-read.js';
 import { parseFrameTemplate, framePath } from './frame-path.js';
 
 const { PNG } = pngjs;
@@ -25,8 +26,8 @@ const srgbTable = (() => {
   return t;
 })();
 
-export function readPngLinear(file: string): LinearFrame {
-  if (/\.exr$/i.test(file)) throw new InputError(`${file}: reading OpenEXR frames back (for flash screening) is not supported yet; screen a PNG render of the shot, or rely on the screening done while rendering`);
+export function readFrameLinear(file: string): LinearFrame {
+  if (/\.exr$/i.test(file)) return readExrLinear(file);
   const png = PNG.sync.read(readFileSync(file), { skipRescale: true });
   const max = png.depth === 16 ? 65535 : 255;
   const linear = Math.abs((png.gamma || 0) - 1) < 1e-3;
@@ -42,6 +43,28 @@ export function readPngLinear(file: string): LinearFrame {
     }
   }
   return { width: png.width, height: png.height, rgb };
+}
+
+function readExrLinear(file: string): LinearFrame {
+  let img;
+  try {
+    img = decodeExr(readFileSync(file));
+  } catch (e) {
+    if (e instanceof ExrFormatError) throw new InputError(`${file}: ${e.message}`);
+    throw e;
+  }
+  const ch = img.channels;
+  const names = ch.has('R') && ch.has('G') && ch.has('B') ? ['R', 'G', 'B'] : ch.has('Y') ? ['Y', 'Y', 'Y'] : undefined;
+  if (!names) throw new InputError(`${file}: no R, G, B or Y channels to show (the file has ${[...ch.keys()].join(', ')})`);
+  const [r, g, b] = names.map((c) => ch.get(c)!);
+  const n = img.width * img.height;
+  const rgb = new Float32Array(n * 3);
+  for (let p = 0; p < n; p++) {
+    rgb[p * 3] = r[p];
+    rgb[p * 3 + 1] = g[p];
+    rgb[p * 3 + 2] = b[p];
+  }
+  return { width: img.width, height: img.height, rgb };
 }
 
 /** Frame numbers present on disk for a template, in order. */
