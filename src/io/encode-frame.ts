@@ -6,6 +6,6 @@ import { encodeExr } from './exr.js';
 import { encodePng } from './png.js';
 
 export function encodeOutput(img: FloatImage, o: ResolvedOutput, pixelAspect: number): Buffer {
-  if (o.format === 'exr') return encodeExr(img, { type: o.exr.type, compression: o.exr.compression, alpha: o.alpha !== 'none', pixelAspect });
-  return encodePng(img, { bitDepth: o.format === 'png8' ? 8 : 16, transfer: o.transfer, alpha: o.alpha });
+  if (o.format === 'exr') return encodeExr(img, { type: o.exr.type, compression: o.exr.compression, alpha: o.alpha === 'none' ? 'none' : o.alpha === 'emission' ? 'zero' : 'derived', pixelAspect });
+  return encodePng(img, { bitDepth: o.format === 'png8' ? 8 : 16, transfer: o.transfer, alpha: o.alpha === 'premultiplied' ? 'premultiplied' : 'none' });
 }

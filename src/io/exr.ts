@@ -17,8 +17,9 @@ export type ExrCompression = 'none' | 'zips' | 'zip';
 export interface ExrOptions {
   type: ExrPixelType;
   compression: ExrCompression;
-  /** with alpha: RGBA, alpha derived from the pass like the PNG writer's; without: RGB */
-  alpha: boolean;
+  /** none: RGB; derived: RGBA, alpha the pass's largest channel like the PNG writer's; zero: RGBA
+   * with alpha 0 (premultiplied light that "over" adds to the plate unchanged) */
+  alpha: 'none' | 'derived' | 'zero';
   pixelAspect: number;
 }
 
@@ -118,7 +119,8 @@ export function zipPredict(raw: Buffer): Buffer {
 
 export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
   const { width, height } = img;
-  const channels = opts.alpha ? ['A', 'B', 'G', 'R'] : ['B', 'G', 'R'];
+  const channels = opts.alpha !== 'none' ? ['A', 'B', 'G', 'R'] : ['B', 'G', 'R'];
+  const zeroAlpha = opts.alpha === 'zero';
   const size = opts.type === 'half' ? 2 : 4;
   const w = new Writer();
   w.bytes(Buffer.from([0x76, 0x2f, 0x31, 0x01]));
@@ -160,7 +162,7 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
       for (const name of channels) {
         for (let x = 0; x < width; x++) {
           const i = (y * width + x) * 4;
-          const v = name === 'A' ? passAlpha(src[i], src[i + 1], src[i + 2]) : src[i + { R: 0, G: 1, B: 2 }[name as 'R' | 'G' | 'B']];
+          const v = name === 'A' ? (zeroAlpha ? 0 : passAlpha(src[i], src[i + 1], src[i + 2])) : src[i + { R: 0, G: 1, B: 2 }[name as 'R' | 'G' | 'B']];
           if (size === 2) o = raw.writeUInt16LE(toHalf(v), o);
           else o = raw.writeFloatLE(v, o);
         }

@@ -662,7 +662,8 @@ class Resolver {
       if (format !== 'exr') ef.error('exr settings need format: exr');
     }
     const af = m.get('alpha');
-    const alpha = af ? af.oneOf(['none', 'premultiplied'] as const) : 'none';
+    const alpha = af ? af.oneOf(['none', 'premultiplied', 'emission'] as const) : 'none';
+    if (alpha === 'emission' && format !== 'exr') af!.error('alpha: emission needs format: exr (PNG stores straight alpha, so light under a zero alpha would be lost)');
     const pf = m.get('passes');
     const passes = pf ? pf.oneOf(['combined', 'separate'] as const) : 'combined';
     m.finish();
@@ -675,6 +676,7 @@ class Resolver {
     }
     if (!template || !format || !transfer || !alpha || !passes || !exr) return undefined;
     if (format === 'exr' && transfer === 'srgb') return undefined;
+    if (alpha === 'emission' && format !== 'exr') return undefined;
     return { template, format, transfer, alpha, passes, exr };
   }
 }

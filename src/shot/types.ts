@@ -10,7 +10,9 @@ import type { Vec2 } from '../timeline/path.js';
 
 export type OutputFormat = 'png16' | 'png8' | 'exr';
 export type Transfer = 'srgb' | 'linear';
-export type AlphaMode = 'none' | 'premultiplied';
+/** none: RGB to add; premultiplied: alpha = the pass's largest channel (clipped); emission: alpha 0
+ * under premultiplied light (OpenEXR only), so "over" adds exactly */
+export type AlphaMode = 'none' | 'premultiplied' | 'emission';
 export type IntensityUnit = 'stops' | 'linear';
 
 export interface ResolvedFrame {

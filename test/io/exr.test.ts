@@ -41,7 +41,7 @@ describe('half floats (IEEE 754 binary16)', () => {
 describe('OpenEXR files', () => {
   it('exrheader reads the attributes the file layout requires, and Rec.709 chromaticities', () => {
     const f = path.join(tempDir(), 'h.exr');
-    writeFileSync(f, encodeExr(ramp(), { type: 'half', compression: 'zip', alpha: true, pixelAspect: 2 }));
+    writeFileSync(f, encodeExr(ramp(), { type: 'half', compression: 'zip', alpha: 'derived', pixelAspect: 2 }));
     const { code, out } = tool('exrheader', [f]);
     expect(code).toBe(0);
     expect(out).toContain('channels (type chlist):\n    A, 16-bit floating-point, sampling 1 1\n    B, 16-bit floating-point, sampling 1 1\n    G, 16-bit floating-point, sampling 1 1\n    R, 16-bit floating-point, sampling 1 1');
@@ -59,7 +59,7 @@ describe('OpenEXR files', () => {
   for (const [type, compression] of [['half', 'none'], ['half', 'zips'], ['half', 'zip'], ['float', 'none'], ['float', 'zip']] as const) {
     it(`oiiotool reads ${type} / ${compression} back to the values written`, () => {
       const f = path.join(tempDir(), 'v.exr');
-      writeFileSync(f, encodeExr(ramp(), { type, compression, alpha: false, pixelAspect: 1 }));
+      writeFileSync(f, encodeExr(ramp(), { type, compression, alpha: 'none', pixelAspect: 1 }));
       const { code, out } = tool('oiiotool', ['--stats', f]);
       expect(code).toBe(0);
       expect(out).toContain(`37 x   21, 3 channel, ${type} openexr`);
