@@ -19,9 +19,8 @@ import { prepareLens } from '../optics/ghost-system.js';
 import { formatLensReport, lensPlot, lensReport } from '../optics/report.js';
 import { existsSync } from 'node:fs';
 import { FlashAnalyser, type FlashReport } from '../safety/flash.js';
-import { framesOnDisk, readFrameLinear } from '../io/read-frame.js';
-import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
-import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
+import { readFrameLinear } from '../io/read-frame.js';
+import { expandFramePath } from '../io/frame-path.js';
 import { formatFlashReport } from './flash-report.js';
 import { outputSequences, passTemplate } from '../render/passes.js';
 import { batchHtml, type BatchReport, type BatchShot } from '../render/batch-report.js';
@@ -37,6 +36,7 @@ import { formatVerify, sequencesIn, verifySequence, type VerifyReport } from '..
 import { shotHash } from '../io/manifest.js';
 import { statSync } from 'node:fs';
 import { Progress } from './progress.js';
+import { addPlate, checkPlateTemplate, openSource, readPlate, readSource, timecodeOf } from '../review/source.js';
 import { shotSummary } from './summary.js';
 
 export interface CliIO {
@@ -351,62 +351,22 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .option('--rate <fps>', 'frame rate of a sequence given by template (default 24)')
     .option('--json', 'print the report as JSON')
     .action((arg: string, opts: { plate?: string; rate?: string; json?: boolean }) => {
-      let template: string;
-      let frames: number[];
-      let rate: FrameRate;
-      let tc: ReturnType<typeof timecodeOf>;
-      let templates: string[] | undefined;
-      if (/\.ya?ml$/i.test(arg)) {
-        const shot = loadShot(arg);
-        templates = outputSequences(shot).map((q) => q.shot.output.template);
-        template = templates[0];
-        frames = [];
-        for (let f = shot.frame.first; f <= shot.frame.last; f++) frames.push(f);
-        const missing = frames.filter((f) => templates!.some((t) => !existsSync(expandFramePath(t, f))));
-        if (missing.length > 0) {
-          throw new InputError(`${arg}: ${missing.length} of ${frames.length} frames are not rendered yet (first missing: ${expandFramePath(template, missing[0])}); render the shot first`);
-        }
-        rate = shot.frame.rate;
-        tc = timecodeOf(shot);
-      } else {
-        const problem = parseFrameTemplate(arg);
-        if (typeof problem === 'string') throw new UsageError(`${arg}: ${problem}`);
-        template = path.resolve(arg);
-        frames = framesOnDisk(template);
-        if (frames.length === 0) throw new InputError(`${arg}: no frames on disk match this template`);
-        const r = parseFrameRate(opts.rate === undefined ? 24 : opts.rate.includes('/') ? opts.rate : Number(opts.rate));
-        if (typeof r === 'string') throw new UsageError(`--rate: ${r}, found "${opts.rate}"`);
-        rate = r;
-        tc = { rate, dropFrame: false, startFrames: frames[0], first: frames[0] };
-      }
-      const first = readFrameLinear(expandFramePath(template, frames[0]));
-      for (const other of (templates ?? []).slice(1)) {
-        const p = readFrameLinear(expandFramePath(other, frames[0]));
-        for (let i = 0; i < first.rgb.length; i++) first.rgb[i] += p.rgb[i];
-      }
-      const black = new FlashAnalyser(first.width, first.height, rate);
-      const plated = opts.plate ? new FlashAnalyser(first.width, first.height, rate) : undefined;
-      for (const f of frames) {
-        const frame = f === frames[0] ? first : readFrameLinear(expandFramePath(template, f));
+      checkPlateTemplate(opts.plate, '--plate');
+      const src = openSource(arg, opts.rate);
+      let black: FlashAnalyser | undefined;
+      let plated: FlashAnalyser | undefined;
+      for (const f of src.frames) {
         // separate passes are judged summed, as they will be seen
-        for (const other of (templates ?? []).slice(1)) {
-          const p = readFrameLinear(expandFramePath(other, f));
-          for (let i = 0; i < frame.rgb.length; i++) frame.rgb[i] += p.rgb[i];
-        }
+        const frame = readSource(src, f);
+        black ??= new FlashAnalyser(frame.width, frame.height, src.rate);
         black.addFrame(f, frame.rgb, 3);
-        if (plated) {
-          const plateFile = expandFramePath(path.resolve(opts.plate!), f);
-          if (!existsSync(plateFile)) throw new InputError(`--plate: no plate frame ${plateFile}`);
-          const plate = readFrameLinear(plateFile);
-          if (plate.width !== frame.width || plate.height !== frame.height) {
-            throw new InputError(`--plate: ${plateFile} is ${plate.width}x${plate.height}, the pass is ${frame.width}x${frame.height}`);
-          }
-          const sum = new Float32Array(plate.rgb.length);
-          for (let i = 0; i < sum.length; i++) sum[i] = plate.rgb[i] + frame.rgb[i];
-          plated.addFrame(f, sum, 3);
+        if (opts.plate) {
+          plated ??= new FlashAnalyser(frame.width, frame.height, src.rate);
+          plated.addFrame(f, addPlate(frame, readPlate(opts.plate, f, frame.width, frame.height, '--plate')).rgb, 3);
         }
       }
-      const reports: [string, FlashReport][] = [['over black', black.report()]];
+      const tc = src.timecode;
+      const reports: [string, FlashReport][] = [['over black', black!.report()]];
       if (plated) reports.push(['added over the plate', plated.report()]);
       if (opts.json) {
         io.stdout(`${JSON.stringify(Object.fromEntries(reports.map(([k, r]) => [k === 'over black' ? 'overBlack' : 'overPlate', r])), null, 2)}\n`);
@@ -492,10 +452,6 @@ function screenSequences(templates: string[], range: FrameRange, shot: ResolvedS
     a.addFrame(f, sum!, 3);
   }
   return a;
-}
-
-function timecodeOf(shot: ResolvedShot) {
-  return { rate: shot.frame.rate, dropFrame: shot.frame.dropFrame, startFrames: shot.frame.timecodeStartFrames, first: shot.frame.first };
 }
 
 export async function run(argv: string[], io: CliIO): Promise<number> {

@@ -1,0 +1,94 @@
+// A rendered sequence to look at: given as a shot file (its output, separate passes summed as they
+// will be seen) or as a frame template of files on disk; read frame by frame as linear light, with
+// an optional background plate added ("plus", Porter & Duff 1984) for review.
+
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { InputError, UsageError } from '../errors.js';
+import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
+import { loadShot } from '../io/load-shot.js';
+import { framesOnDisk, readFrameLinear, type LinearFrame } from '../io/read-frame.js';
+import { outputSequences } from '../render/passes.js';
+import type { ResolvedShot } from '../shot/types.js';
+import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
+
+export interface TimecodeInfo {
+  rate: FrameRate;
+  dropFrame: boolean;
+  /** timecode of the first frame, as a frame count */
+  startFrames: number;
+  first: number;
+}
+
+export interface SequenceSource {
+  /** the templates whose frames are summed (one unless the shot writes separate passes) */
+  templates: string[];
+  frames: number[];
+  rate: FrameRate;
+  timecode: TimecodeInfo;
+}
+
+export function timecodeOf(shot: ResolvedShot): TimecodeInfo {
+  return { rate: shot.frame.rate, dropFrame: shot.frame.dropFrame, startFrames: shot.frame.timecodeStartFrames, first: shot.frame.first };
+}
+
+/** Parse a --rate option: 24, 29.97 or 30000/1001 (default 24). */
+export function rateOption(value: string | undefined): FrameRate {
+  const r = parseFrameRate(value === undefined ? 24 : value.includes('/') ? value : Number(value));
+  if (typeof r === 'string') throw new UsageError(`--rate: ${r}, found "${value}"`);
+  return r;
+}
+
+/** A shot file (every frame of its range must be rendered) or a frame template (the frames on disk). */
+export function openSource(arg: string, rate?: string): SequenceSource {
+  if (/\.ya?ml$/i.test(arg)) {
+    const shot = loadShot(arg);
+    const templates = outputSequences(shot).map((q) => q.shot.output.template);
+    const frames: number[] = [];
+    for (let f = shot.frame.first; f <= shot.frame.last; f++) frames.push(f);
+    const missing = frames.filter((f) => templates.some((t) => !existsSync(expandFramePath(t, f))));
+    if (missing.length > 0) {
+      throw new InputError(`${arg}: ${missing.length} of ${frames.length} frames are not rendered yet (first missing: ${expandFramePath(templates[0], missing[0])}); render the shot first`);
+    }
+    return { templates, frames, rate: shot.frame.rate, timecode: timecodeOf(shot) };
+  }
+  const problem = parseFrameTemplate(arg);
+  if (typeof problem === 'string') throw new UsageError(`${arg}: ${problem}`);
+  const template = path.resolve(arg);
+  const frames = framesOnDisk(template);
+  if (frames.length === 0) throw new InputError(`${arg}: no frames on disk match this template`);
+  const r = rateOption(rate);
+  return { templates: [template], frames, rate: r, timecode: { rate: r, dropFrame: false, startFrames: frames[0], first: frames[0] } };
+}
+
+/** One frame of the source, passes summed, as linear RGB. */
+export function readSource(src: SequenceSource, frame: number): LinearFrame {
+  const out = readFrameLinear(expandFramePath(src.templates[0], frame));
+  for (const t of src.templates.slice(1)) {
+    const p = readFrameLinear(expandFramePath(t, frame));
+    for (let i = 0; i < out.rgb.length; i++) out.rgb[i] += p.rgb[i];
+  }
+  return out;
+}
+
+/** The plate's frame, which must exist and match the pass's size. */
+export function readPlate(plateTemplate: string, frame: number, width: number, height: number, option = '--over'): LinearFrame {
+  const file = expandFramePath(path.resolve(plateTemplate), frame);
+  if (!existsSync(file)) throw new InputError(`${option}: no plate frame ${file}`);
+  const plate = readFrameLinear(file);
+  if (plate.width !== width || plate.height !== height) throw new InputError(`${option}: ${file} is ${plate.width}x${plate.height}, the pass is ${width}x${height}`);
+  return plate;
+}
+
+/** Check a plate template early (before any work): a valid template. */
+export function checkPlateTemplate(t: string | undefined, option = '--over'): void {
+  if (t === undefined) return;
+  const problem = parseFrameTemplate(t);
+  if (typeof problem === 'string') throw new UsageError(`${option}: ${t}: ${problem}`);
+}
+
+/** pass + plate in linear light (Porter & Duff "plus"), in place into the pass. */
+export function addPlate(pass: LinearFrame, plate: LinearFrame): LinearFrame {
+  for (let i = 0; i < pass.rgb.length; i++) pass.rgb[i] += plate.rgb[i];
+  return pass;
+}
