@@ -2,13 +2,16 @@
 # Installs the Debian tools the tests use, if they are missing:
 #   chromium   the batch report page is loaded in headless Chromium
 #   slurm-wlm  the farm round trip runs on a real single-node Slurm (started by the test itself)
-#   openexr, openimageio-tools  exrheader, oiiotool and idiff read the OpenEXR files we write
+#   openexr, openimageio-tools  exrheader, oiiotool and idiff read the OpenEXR files we write,
+#              and oiiotool writes the ones our reader must read
+#   ffmpeg     review movies are encoded by it and checked with ffprobe
 set -euo pipefail
 need=()
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
 [ -x /usr/sbin/slurmctld ] || need+=(slurm-wlm)
 command -v exrheader >/dev/null 2>&1 || need+=(openexr)
 command -v oiiotool >/dev/null 2>&1 || need+=(openimageio-tools)
+command -v ffprobe >/dev/null 2>&1 || need+=(ffmpeg)
 if [ ${#need[@]} -gt 0 ]; then
   sudo=""
   [ "$(id -u)" -eq 0 ] || sudo="sudo"

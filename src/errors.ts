@@ -13,6 +13,8 @@ export const ExitCode = {
   framesFailed: 4,
   /** flash screening flagged the sequence (`flashes`, or `render --fail-on-flash`) */
   flashes: 5,
+  /** a system tool the command needs (ffmpeg for --movie) is not installed */
+  toolMissing: 6,
   /** the render was interrupted (SIGINT/SIGTERM); finished frames are kept */
   interrupted: 130,
 } as const;
@@ -73,5 +75,12 @@ export class OutputError extends StraylightError {
 export class UsageError extends StraylightError {
   constructor(message: string) {
     super(message, ExitCode.usage);
+  }
+}
+
+/** A system tool the asked output needs is missing; checked before any work starts. */
+export class ToolMissingError extends StraylightError {
+  constructor(message: string) {
+    super(message, ExitCode.toolMissing);
   }
 }

@@ -2,18 +2,11 @@
 
 import type { FlashReport } from '../safety/flash.js';
 import { FLASH_CAUTION } from '../safety/flash.js';
-import { formatFrameRate, type FrameRate } from '../timeline/frame-rate.js';
+import type { TimecodeInfo } from '../review/source.js';
+import { formatFrameRate } from '../timeline/frame-rate.js';
 import { framesToTimecode } from '../timeline/timecode.js';
 
-export interface TimecodeContext {
-  rate: FrameRate;
-  dropFrame: boolean;
-  /** timecode of frame `first`, as a frame count */
-  startFrames: number;
-  first: number;
-}
-
-export function formatFlashReport(r: FlashReport, tc: TimecodeContext, over: string): string {
+export function formatFlashReport(r: FlashReport, tc: TimecodeInfo, over: string): string {
   const label = (frame: number) => framesToTimecode(tc.startFrames + frame - tc.first, tc.rate, tc.dropFrame);
   const lines = [`flash screening: ${r.frames} frames, ${r.firstFrame}-${r.lastFrame} at ${formatFrameRate(tc.rate)} fps, ${over}`];
   if (r.spans.length === 0) {

@@ -36,6 +36,8 @@ import { formatVerify, sequencesIn, verifySequence, type VerifyReport } from '..
 import { shotHash } from '../io/manifest.js';
 import { statSync } from 'node:fs';
 import { Progress } from './progress.js';
+import { contactSheet } from '../review/sheet.js';
+import { findFfmpeg, movieKind, writeMovie } from '../review/movie.js';
 import { addPlate, checkPlateTemplate, openSource, readPlate, readSource, timecodeOf } from '../review/source.js';
 import { shotSummary } from './summary.js';
 
@@ -106,7 +108,15 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .addOption(new Option('--progress <style>', 'progress on stderr: line (default) or json (one JSON object a line, for farm logs)').choices(['line', 'json']))
     .option('--quiet', 'print nothing but errors and safety warnings')
     .option('--fail-on-flash', 'exit 5 when flash screening flags the rendered frames')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean }) => {
+    .option('--movie <file>', 'then encode a review movie with ffmpeg: .mov (ProRes 4444 with alpha) or .mp4 (H.264)')
+    .option('--over <plate>', 'composite the movie over this background plate sequence (added in linear light)')
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean; movie?: string; over?: string }) => {
+      // review options are checked before any work, so an overnight render does not fail at the end
+      if (opts.over && !opts.movie) throw new UsageError('--over: composites the review movie; give --movie FILE too');
+      if (opts.movie) movieKind(opts.movie);
+      const ffmpeg = opts.movie ? findFfmpeg() : undefined;
+      checkPlateTemplate(opts.over);
+      if (opts.movie && opts.shard) throw new UsageError('--movie needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)');
       const shot = loadShot(shotFile);
       const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
       let template: string | undefined;
@@ -184,6 +194,13 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           io.stderr(`WARNING: this pass may flash dangerously for viewers with photosensitive epilepsy.\n${formatFlashReport(report, timecodeOf(shot), 'over black')}`);
           if (opts.failOnFlash) setExit(ExitCode.flashes);
         }
+      }
+      if (opts.movie && !result.interrupted && result.failed.length === 0) {
+        const templates = sequences.map((q) => (template ? (q.name !== 'combined' ? passTemplate(template, q.name as never) : template) : q.shot.output.template));
+        const range: number[] = [];
+        for (let f = frames.first; f <= frames.last; f++) range.push(f);
+        const movie = await writeMovie({ templates, frames: range, rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect }, opts.movie, { over: opts.over, ffmpeg, signal: io.signal });
+        if (!opts.quiet) io.stderr(`movie: ${movie.file} (${movie.frames} frames, ${movie.kind === 'h264' ? 'H.264' : 'ProRes 4444 with alpha'}${opts.over ? ', over the plate' : ''})\n`);
       }
     });
 
@@ -365,7 +382,8 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           plated.addFrame(f, addPlate(frame, readPlate(opts.plate, f, frame.width, frame.height, '--plate')).rgb, 3);
         }
       }
-      const tc = src.timecode;
+      // a bare template has no timecode of its own: label frames by their numbers
+      const tc = src.timecode ?? { rate: src.rate, dropFrame: false, startFrames: src.frames[0], first: src.frames[0] };
       const reports: [string, FlashReport][] = [['over black', black!.report()]];
       if (plated) reports.push(['added over the plate', plated.report()]);
       if (opts.json) {
@@ -374,6 +392,26 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         io.stdout(reports.map(([k, r]) => formatFlashReport(r, tc, k)).join('\n'));
       }
       if (reports.some(([, r]) => r.spans.length > 0)) setExit(ExitCode.flashes);
+    });
+
+  program
+    .command('sheet')
+    .description('make a contact sheet of a rendered sequence: every Nth frame, frame numbers printed')
+    .argument('<shot-or-sequence>', 'a shot file (its rendered output) or a frame template such as render/x.####.png')
+    .requiredOption('-o, --out <file.png>', 'the sheet to write (8-bit sRGB PNG)')
+    .addOption(new Option('--every <n>', 'one tile every N frames (default: at most 24 tiles)').argParser(positiveInt('--every')))
+    .addOption(new Option('--columns <n>', 'tiles a row').default(6).argParser(positiveInt('--columns')))
+    .addOption(new Option('--tile-width <px>', 'tile width in pixels').default(320).argParser(positiveInt('--tile-width')))
+    .option('--over <plate>', 'show the pass added over this background plate sequence (linear light)')
+    .option('--rate <fps>', 'frame rate of a sequence given by template (default 24)')
+    .action((arg: string, opts: { out: string; every?: number; columns: number; tileWidth: number; over?: string; rate?: string }) => {
+      if (path.extname(opts.out).toLowerCase() !== '.png') throw new UsageError(`--out: the sheet is a PNG; the file must end in .png, found "${opts.out}"`);
+      checkPlateTemplate(opts.over);
+      const src = openSource(arg, opts.rate);
+      const every = opts.every ?? Math.max(1, Math.ceil(src.frames.length / 24));
+      const { image, frames } = contactSheet(src, { every, columns: opts.columns, tileWidth: opts.tileWidth, over: opts.over });
+      writeFileAtomic(path.resolve(opts.out), encodePng(image, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+      io.stdout(`${opts.out}: ${frames.length} frames (${frames[0]}-${frames[frames.length - 1]}, every ${every}), ${image.width}x${image.height}\n`);
     });
 
   program

@@ -25,7 +25,10 @@ export interface SequenceSource {
   templates: string[];
   frames: number[];
   rate: FrameRate;
-  timecode: TimecodeInfo;
+  /** the shot's timecode; undefined for a bare template (frame numbers only) */
+  timecode?: TimecodeInfo;
+  /** the frame's pixel aspect ratio (1 for a bare template) */
+  pixelAspect: number;
 }
 
 export function timecodeOf(shot: ResolvedShot): TimecodeInfo {
@@ -50,7 +53,7 @@ export function openSource(arg: string, rate?: string): SequenceSource {
     if (missing.length > 0) {
       throw new InputError(`${arg}: ${missing.length} of ${frames.length} frames are not rendered yet (first missing: ${expandFramePath(templates[0], missing[0])}); render the shot first`);
     }
-    return { templates, frames, rate: shot.frame.rate, timecode: timecodeOf(shot) };
+    return { templates, frames, rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect };
   }
   const problem = parseFrameTemplate(arg);
   if (typeof problem === 'string') throw new UsageError(`${arg}: ${problem}`);
@@ -58,7 +61,7 @@ export function openSource(arg: string, rate?: string): SequenceSource {
   const frames = framesOnDisk(template);
   if (frames.length === 0) throw new InputError(`${arg}: no frames on disk match this template`);
   const r = rateOption(rate);
-  return { templates: [template], frames, rate: r, timecode: { rate: r, dropFrame: false, startFrames: frames[0], first: frames[0] } };
+  return { templates: [template], frames, rate: r, pixelAspect: 1 };
 }
 
 /** One frame of the source, passes summed, as linear RGB. */
