@@ -173,5 +173,20 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   rmSync(dir, { recursive: true, force: true });
 }
 
+// --- OpenEXR: half ZIP writing next to 16-bit PNG, and reading mattes back (PIZ and ZIP)
+{
+  const { encodeExr } = await import('../src/io/exr.js');
+  const { decodeExr } = await import('../src/io/exr-read.js');
+  for (const [w, h] of [[1920, 1080], [3840, 2160]]) {
+    const frame = renderFrame(glowShot(w, h), 1);
+    const runs = w > 2000 ? 3 : RUNS;
+    const exr = time(() => encodeExr(frame, { type: 'half', compression: 'zip', alpha: 'none', pixelAspect: 1 }), runs);
+    const png = time(() => encodePng(frame, { bitDepth: 16, transfer: 'srgb', alpha: 'none' }), runs);
+    const zipBytes = encodeExr(frame, { type: 'half', compression: 'zip', alpha: 'none', pixelAspect: 1 });
+    const read = time(() => decodeExr(zipBytes), runs);
+    rows.push([`${w}x${h}: EXR half ZIP write vs 16-bit PNG; EXR read`, `${ms(exr)} vs ${ms(png)} (x${(exr / png).toFixed(2)}); read ${ms(read)}`]);
+  }
+}
+
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
 for (const [name, v] of rows) console.log(`  ${name.padEnd(58)} ${v}`);
