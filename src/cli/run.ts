@@ -36,6 +36,7 @@ import { formatVerify, sequencesIn, verifySequence, type VerifyReport } from '..
 import { shotHash } from '../io/manifest.js';
 import { statSync } from 'node:fs';
 import { Progress } from './progress.js';
+import { VERSION } from '../version.js';
 import { contactSheet } from '../review/sheet.js';
 import { findFfmpeg, movieKind, writeMovie } from '../review/movie.js';
 import { addPlate, checkPlateTemplate, openSource, readPlate, readSource, timecodeOf } from '../review/source.js';
@@ -88,7 +89,7 @@ function integer(name: string) {
 export function buildProgram(io: CliIO, setExit: (code: number) => void): Command {
   const program = new Command('straylight')
     .description('Render physically based lens-flare passes for shots: a YAML shot file in, numbered frames out.')
-    .version('0.1.0')
+    .version(VERSION)
     .exitOverride()
     .configureOutput({
       writeOut: (s) => io.stdout(s),
@@ -214,7 +215,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .option('--quiet', 'print nothing but errors and safety warnings')
     .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean }) => {
       if (!opts.report.endsWith('.json')) throw new UsageError(`--report: the file must end in .json, found "${opts.report}"`);
-      const report: BatchReport = { tool: 'straylight 0.1.0', started: new Date().toISOString(), finished: '', shots: [] };
+      const report: BatchReport = { tool: `straylight ${VERSION}`, started: new Date().toISOString(), finished: '', shots: [] };
       for (const file of shots) {
         if (io.signal?.aborted) break;
         const started = performance.now();

@@ -7,6 +7,7 @@
 // delta predictor, and zlib-deflate; a chunk that does not shrink is stored raw, as the
 // specification allows. Values are scene-linear and premultiplied (EXR's own convention).
 
+import { endianness } from 'node:os';
 import { deflateSync } from 'node:zlib';
 import type { FloatImage } from '../raster/image.js';
 import { passAlpha } from './png.js';
@@ -24,6 +25,9 @@ export interface ExrOptions {
 }
 
 const COMPRESSION_CODE: Record<ExrCompression, number> = { none: 0, zips: 2, zip: 3 };
+/** zlib level for ZIP/ZIPS, by measurement at 1920x1080 half RGB: level 4 took 270 ms for 1.51 MB,
+ * level 6 twice as long for 1.17 MB; re-render speed matters more than disk for passes */
+const ZIP_LEVEL = 4;
 const LINES_PER_CHUNK: Record<ExrCompression, number> = { none: 1, zips: 1, zip: 16 };
 
 // float32 -> float16 bits, round to nearest even (IEEE 754 binary16)
@@ -118,6 +122,8 @@ export function zipPredict(raw: Buffer): Buffer {
 }
 
 export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
+  // samples are laid out through typed arrays, which use the machine's byte order
+  if (endianness() !== 'LE') throw new Error('the OpenEXR writer needs a little-endian machine');
   const { width, height } = img;
   const channels = opts.alpha !== 'none' ? ['A', 'B', 'G', 'R'] : ['B', 'G', 'R'];
   const zeroAlpha = opts.alpha === 'zero';
@@ -150,27 +156,33 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
 
   const per = LINES_PER_CHUNK[opts.compression];
   const count = Math.ceil(height / per);
-  const lineBytes = width * channels.length * size;
   const blocks: Buffer[] = [];
   const src = img.data;
+  // channel order in the file (alphabetical): A (when present), B, G, R -> source offsets
+  const offsets = channels.map((c) => ({ A: -1, B: 2, G: 1, R: 0 })[c as 'A' | 'B' | 'G' | 'R']);
+  const nc = channels.length;
   for (let c = 0; c < count; c++) {
     const y0 = c * per;
     const lines = Math.min(per, height - y0);
-    const raw = Buffer.alloc(lines * lineBytes);
+    // each line holds its channels one after another, little endian
+    const samples = lines * width * nc;
+    const words = size === 2 ? new Uint16Array(samples) : new Float32Array(samples);
     let o = 0;
     for (let y = y0; y < y0 + lines; y++) {
-      for (const name of channels) {
+      const row = y * width * 4;
+      for (let k = 0; k < nc; k++) {
+        const off = offsets[k];
         for (let x = 0; x < width; x++) {
-          const i = (y * width + x) * 4;
-          const v = name === 'A' ? (zeroAlpha ? 0 : passAlpha(src[i], src[i + 1], src[i + 2])) : src[i + { R: 0, G: 1, B: 2 }[name as 'R' | 'G' | 'B']];
-          if (size === 2) o = raw.writeUInt16LE(toHalf(v), o);
-          else o = raw.writeFloatLE(v, o);
+          const i = row + x * 4;
+          const v = off < 0 ? (zeroAlpha ? 0 : passAlpha(src[i], src[i + 1], src[i + 2])) : src[i + off];
+          words[o++] = size === 2 ? toHalf(v) : v;
         }
       }
     }
+    const raw = Buffer.from(words.buffer, words.byteOffset, words.byteLength);
     let data = raw;
     if (opts.compression !== 'none') {
-      const z = deflateSync(zipPredict(raw), { level: 6 });
+      const z = deflateSync(zipPredict(raw), { level: ZIP_LEVEL });
       if (z.length < raw.length) data = z;
     }
     const head = Buffer.alloc(8);

@@ -14,8 +14,9 @@ import type { ResolvedShot } from '../shot/types.js';
 import { writeFileAtomic } from './atomic-write.js';
 import { expandFramePath, parseFrameTemplate } from './frame-path.js';
 import { framesOnDisk } from './read-frame.js';
+import { VERSION } from '../version.js';
 
-export const TOOL_VERSION = 'straylight 0.1.0';
+export const TOOL_VERSION = `straylight ${VERSION}`;
 
 export interface Shard {
   /** 0-based index of this share */

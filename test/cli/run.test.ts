@@ -17,6 +17,13 @@ function shotFile(text = MINIMAL_SHOT): string {
 }
 
 describe('straylight CLI', () => {
+  it('--version prints the version, the same as package.json\'s', async () => {
+    const pkg = JSON.parse(readFileSync(path.resolve('package.json'), 'utf8')) as { version: string };
+    const r = await cli(['--version']);
+    expect(r.code).toBe(ExitCode.ok);
+    expect(r.stdout.trim()).toBe(pkg.version);
+  });
+
   it('check prints the summary on stdout, with the SMPTE timecode range', async () => {
     const f = shotFile(MINIMAL_SHOT.replace('rate: 24', 'rate: 25\n  timecode: "10:00:00:00"'));
     const r = await cli(['check', f]);
