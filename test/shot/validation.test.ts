@@ -129,7 +129,7 @@ describe('shot validation', () => {
       'bad.yaml:13:9: output.path: the file name must end in .png for format png16, found ".exr"',
     ]],
     ['an unknown alpha mode gets the choices', shotWith('  path: out', '  alpha: straight\n  path: out'), [
-      'bad.yaml:13:10: output.alpha: expected one of none, premultiplied, found "straight"',
+      'bad.yaml:13:10: output.alpha: expected one of none, premultiplied, emission, found "straight"',
     ]],
     ['a future format version', shotWith('version: 1', 'version: 2'), [
       'bad.yaml:1:10: version: expected version 1, found 2',
