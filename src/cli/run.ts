@@ -7,7 +7,7 @@ import { ExitCode, InputError, StraylightError, UsageError } from '../errors.js'
 import { writeFileAtomic } from '../io/atomic-write.js';
 import { loadShot } from '../io/load-shot.js';
 import { checkOutputTemplate } from '../shot/resolve.js';
-import type { ResolvedShot } from '../shot/types.js';
+import type { AlphaMode, OutputFormat, ResolvedShot } from '../shot/types.js';
 import { renderSequence, shardFrames, type FrameRange } from '../render/sequence.js';
 import { renderFrame } from '../render/render-frame.js';
 import { availableParallelism } from 'node:os';
@@ -109,16 +109,18 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .addOption(new Option('--progress <style>', 'progress on stderr: line (default) or json (one JSON object a line, for farm logs)').choices(['line', 'json']))
     .option('--quiet', 'print nothing but errors and safety warnings')
     .option('--fail-on-flash', 'exit 5 when flash screening flags the rendered frames')
+    .addOption(new Option('--format <format>', "output format, instead of the shot's (an --out ending in .exr also picks exr)").choices(['png16', 'png8', 'exr']))
+    .addOption(new Option('--alpha <mode>', "alpha, instead of the shot's: none (add), premultiplied, or emission (exr: over adds)").choices(['none', 'premultiplied', 'emission']))
     .option('--movie <file>', 'then encode a review movie with ffmpeg: .mov (ProRes 4444 with alpha) or .mp4 (H.264)')
     .option('--over <plate>', 'composite the movie over this background plate sequence (added in linear light)')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean; movie?: string; over?: string }) => {
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
       // review options are checked before any work, so an overnight render does not fail at the end
       if (opts.over && !opts.movie) throw new UsageError('--over: composites the review movie; give --movie FILE too');
       if (opts.movie) movieKind(opts.movie);
       const ffmpeg = opts.movie ? findFfmpeg() : undefined;
       checkPlateTemplate(opts.over);
       if (opts.movie && opts.shard) throw new UsageError('--movie needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)');
-      const shot = loadShot(shotFile);
+      const shot = withOutputOptions(loadShot(shotFile), opts);
       const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
       let template: string | undefined;
       if (opts.out) {
@@ -459,6 +461,24 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     });
 
   return program;
+}
+
+/**
+ * The shot with the command line's output choices applied: --format (or an --out ending in .exr),
+ * --alpha. OpenEXR is always linear; a PNG made from an EXR shot stays linear (as `still` does).
+ */
+function withOutputOptions(shot: ResolvedShot, opts: { out?: string; format?: OutputFormat; alpha?: AlphaMode }): ResolvedShot {
+  const o = shot.output;
+  const ext = opts.out ? path.extname(opts.out).toLowerCase() : '';
+  const format = opts.format ?? (ext === '.exr' ? 'exr' : ext === '.png' && o.format === 'exr' ? 'png16' : o.format);
+  const alpha = opts.alpha ?? o.alpha;
+  if (alpha === 'emission' && format !== 'exr') throw new UsageError('--alpha emission needs the exr format (PNG stores straight alpha, so light under a zero alpha would be lost)');
+  if (format === o.format && alpha === o.alpha) return shot;
+  const transfer = format === 'exr' ? 'linear' : o.transfer;
+  const ext2 = format === 'exr' ? '.exr' : '.png';
+  // the shot's own output path follows the new format when --out does not replace it
+  const template = opts.out ? o.template : o.template.replace(/\.[^./\\]+$/, ext2);
+  return { ...shot, output: { ...o, format, alpha, transfer, template } };
 }
 
 /** A small sRGB PNG of a rendered frame, as a data URI (nearest-pixel reduction to 320 wide). */

@@ -94,6 +94,22 @@ output: { path: "o/f.####.exr", format: exr }
     expect(code).toBe(0);
   });
 
+  it('the command line picks the format and alpha: --format, an --out ending in .exr, --alpha', async () => {
+    const dir = tempDir();
+    const shot = path.join(dir, 's.yaml');
+    writeFileSync(shot, `version: 1\nframe: { width: 32, height: 18, rate: 24, first: 1, last: 1 }\nlights: [{ name: a, position: [16, 9], intensity: 0 }]\noutput: { path: "o/f.####.png" }\n`);
+    expect((await cli(['render', shot, '--quiet', '--format', 'exr', '--alpha', 'emission'])).code).toBe(0);
+    expect(tool('oiiotool', ['--info', path.join(dir, 'o', 'f.0001.exr')]).out).toContain('32 x   18, 4 channel, half openexr');
+    expect((await cli(['render', shot, '--quiet', '--out', path.join(dir, 'p', 'g.####.exr')])).code).toBe(0);
+    expect(tool('oiiotool', ['--info', path.join(dir, 'p', 'g.0001.exr')]).out).toContain('32 x   18, 3 channel, half openexr');
+    const bad = await cli(['render', shot, '--alpha', 'emission']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toContain('--alpha emission needs the exr format');
+    const mismatch = await cli(['render', shot, '--format', 'exr', '--out', path.join(dir, 'q.####.png')]);
+    expect(mismatch.code).toBe(2);
+    expect(mismatch.stderr).toContain('--out: the file name must end in .exr for format exr, found ".png"');
+  });
+
   it('render writes an EXR sequence; srgb transfer with exr is refused', async () => {
     const dir = tempDir();
     const shot = path.join(dir, 's.yaml');
