@@ -31,6 +31,8 @@ export interface GhostFrameSettings {
   fNumber: number;
   gain: number;
   quality: GhostQuality;
+  /** the faint-ghost threshold (default FAINT_PEAK; 0 draws every ghost in full) */
+  faintPeak?: number;
 }
 
 export interface GhostStats {
@@ -45,6 +47,16 @@ const SPLAT_AREA_PX = 1;
 /** Ghost sizes (largest side, px) above which it is drawn at half and at quarter resolution. */
 const HALF_RES_PX = 240;
 const QUARTER_RES_PX = 600;
+/**
+ * Below `high`, a ghost whose paraxial peak is under this (linear display value) is faint: it is
+ * traced on the quality's lighter grid with fewer wavelengths and drawn one resolution step
+ * coarser (down to an eighth). Its colour fringes and edges then differ by less than the quality
+ * step itself (measured in DEVELOPERS.md), and such ghosts are most of the cost: large, dim discs.
+ */
+export const FAINT_PEAK = 2e-3;
+const ONE: readonly [number, number, number] = [1, 1, 1];
+/** Where in a ghost's ray box colourMatch probes (fractions of the box). */
+const COLOUR_PROBES: readonly [number, number][] = [[0.5, 0.5], [0.3, 0.3], [0.7, 0.3], [0.3, 0.7], [0.7, 0.7]];
 /** Cells per side of the coarse grid that finds each ghost's ray box. */
 const FIT_GRID = 12;
 
@@ -70,6 +82,23 @@ interface Layer {
   h: number;
   data: Float32Array;
   used: boolean;
+  /** the layer pixels written since the last upsample (inclusive bounds) */
+  bx0: number;
+  by0: number;
+  bx1: number;
+  by1: number;
+}
+
+function touch(layer: Layer, x0: number, y0: number, x1: number, y1: number): void {
+  if (x0 < layer.bx0) layer.bx0 = x0;
+  if (y0 < layer.by0) layer.by0 = y0;
+  if (x1 > layer.bx1) layer.bx1 = x1;
+  if (y1 > layer.by1) layer.by1 = y1;
+}
+
+function resetBox(layer: Layer): void {
+  layer.bx0 = layer.by0 = Infinity;
+  layer.bx1 = layer.by1 = -Infinity;
 }
 
 // low-resolution layers, kept per thread and cleared after use (no fresh memory each call)
@@ -79,10 +108,10 @@ function layersFor(width: number, height: number): Layer[] {
     layerCache = {
       w: width,
       h: height,
-      layers: [1, 2, 4].map((scale) => {
+      layers: [1, 2, 4, 8].map((scale) => {
         const w = Math.ceil(width / scale);
         const h = Math.ceil(height / scale);
-        return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false };
+        return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false, bx0: Infinity, by0: Infinity, bx1: -Infinity, by1: -Infinity };
       }),
     };
   }
@@ -107,38 +136,50 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   // a coarse grid finds each ghost's ray box; the fine grid traces and draws it
   const coarse = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
   const grid = new GhostGrid(system, system.grid, view, sx, sy, stopRadius, pxX, pxY, shape);
+  const faintGrid = system.faintGrid === system.grid ? grid : new GhostGrid(system, system.faintGrid, view, sx, sy, stopRadius, pxX, pxY, shape);
   for (let g = 0; g < system.kept; g++) {
     const ghost = system.ranked[g];
     // paraxial peak estimate: skip what cannot reach a visible value
-    if ((lum / epArea) * ghost.strength * mm2PerPx * settings.gain < INVISIBLE) {
+    const peak = (lum / epArea) * ghost.strength * mm2PerPx * settings.gain;
+    if (peak < INVISIBLE) {
       if (stats) stats.skipped++;
       continue;
     }
+    const faint = multiRes && peak < (settings.faintPeak ?? FAINT_PEAK);
     const box = coarse.fitBox(ghost, ghost.plans[centre]);
     if (!box) {
       if (stats) stats.skipped++;
       continue;
     }
-    let layer = layers[0];
+    let level = 0;
     if (multiRes) {
       const size = coarse.passingSizePx();
-      if (size > QUARTER_RES_PX) layer = layers[2];
-      else if (size > HALF_RES_PX) layer = layers[1];
+      level = size > QUARTER_RES_PX ? 2 : size > HALF_RES_PX ? 1 : 0;
+      if (faint && size > HALF_RES_PX / 2) level++;
     }
-    for (let w = 0; w < system.samples.length; w++) {
-      const weight = system.samples[w].rgb;
+    const layer = layers[level];
+    const samples = faint ? system.faintSamples : system.samples;
+    const plans = faint ? ghost.faintPlans : ghost.plans;
+    const fine = faint ? faintGrid : grid;
+    const tone = faint ? fine.colourMatch(ghost, box, system) : ONE;
+    for (let w = 0; w < samples.length; w++) {
+      const weight = samples[w].rgb;
       const k = settings.gain / view.pixelAspect;
-      grid.trace(ghost.plans[w], box);
-      grid.draw(img, layer, [e0[0] * weight[0] * k, e0[1] * weight[1] * k, e0[2] * weight[2] * k]);
+      fine.trace(plans[w], box);
+      fine.draw(img, layer, [e0[0] * weight[0] * tone[0] * k, e0[1] * weight[1] * tone[1] * k, e0[2] * weight[2] * tone[2] * k]);
     }
     if (stats) stats.drawn++;
   }
-  for (const layer of layers) {
-    if (layer.scale > 1 && layer.used) {
-      upsampleAdd(img, layer);
-      layer.data.fill(0);
+  // cascade the coarse layers down, each into the next finer one (2x bilinear), so the full frame
+  // is walked once however many layers were used
+  for (let l = layers.length - 1; l >= 1; l--) {
+    const layer = layers[l];
+    if (layer.used && layer.bx1 >= layer.bx0) {
+      if (l === 1) upsample2x(layer, img.data, img.width, img.height, 4, undefined);
+      else upsample2x(layer, layers[l - 1].data, layers[l - 1].w, layers[l - 1].h, 3, layers[l - 1]);
     }
     layer.used = false;
+    resetBox(layer);
   }
 }
 
@@ -299,6 +340,33 @@ class GhostGrid {
     const mx = 0.04 * (box.x1 - box.x0);
     const my = 0.04 * (box.y1 - box.y0);
     return { x0: Math.max(-front, box.x0 - mx), x1: Math.min(front, box.x1 + mx), y0: Math.max(-front, box.y0 - my), y1: Math.min(front, box.y1 + my) };
+  }
+
+  /**
+   * RGB factors that give a faint ghost, drawn with the lighter wavelength set, the colour the full
+   * set gives it: the throughput of a few rays through the box, traced at every wavelength of both
+   * sets, weighted into RGB. Fewer samples see the coatings' reflectance curves at fewer points
+   * (and the curves move with the angle of incidence), which would shift the ghost's tint and
+   * brightness without this. Falls back to the normal-incidence ratio when no test ray passes.
+   */
+  colourMatch(ghost: RankedGhost, box: Box, system: LensSystem): readonly [number, number, number] {
+    const full = [0, 0, 0];
+    const lite = [0, 0, 0];
+    const { dx, dy, dz, launch } = this;
+    for (const [fx, fy] of COLOUR_PROBES) {
+      const gx = box.x0 + fx * (box.x1 - box.x0);
+      const gy = box.y0 + fy * (box.y1 - box.y0);
+      for (const [plans, samples, acc] of [[ghost.plans, system.samples, full], [ghost.faintPlans, system.faintSamples, lite]] as const) {
+        for (let w = 0; w < plans.length; w++) {
+          plans[w].stopRadiusMm = this.stopRadius;
+          if (!traceRay(plans[w], gx - (launch * dx) / dz, gy - (launch * dy) / dz, -launch, dx, dy, dz, hit)) continue;
+          if (hit.vignette > 1 || hit.margin < 0) continue;
+          for (let c = 0; c < 3; c++) acc[c] += hit.throughput * samples[w].rgb[c];
+        }
+      }
+    }
+    if (!(lite[0] > 0 && lite[1] > 0 && lite[2] > 0 && full[0] > 0)) return ghost.faintColour;
+    return [full[0] / lite[0], full[1] / lite[1], full[2] / lite[2]];
   }
 
   /** Largest side (px) of the region whose rays pass, from the last trace. */
@@ -474,6 +542,7 @@ class GhostGrid {
     const minY = Math.max(0, Math.ceil(Math.min(y0, y1, y2) - 0.5));
     const maxY = Math.min(layer.h - 1, Math.floor(Math.max(y0, y1, y2) - 0.5));
     if (minX > maxX || minY > maxY) return;
+    touch(layer, minX, minY, maxX, maxY);
     const inv = 1 / area2;
     this.ex1 = (y2 - y0) * inv;
     this.ey1 = (y1 - y0) * inv;
@@ -549,15 +618,14 @@ class GhostGrid {
       // wc = oy ex2 - ox ey1 are affine in ox; solve wb >= 0, wc >= 0, wb + wc <= 1 for ox
       let lo = minX + 0.5 - x0;
       let hi = maxX + 0.5 - x0;
-      const bound = (slope: number, rest: number) => {
-        // slope * ox + rest >= 0
+      // each weight is slope * ox + rest >= 0: a lower or an upper bound on ox
+      for (let k = 0; k < 3; k++) {
+        const slope = k === 0 ? ex1 : k === 1 ? -ey1 : -(ex1 - ey1);
+        const rest = k === 0 ? -oy * ey2 : k === 1 ? oy * ex2 : 1 - oy * (ex2 - ey2);
         if (slope > 0) lo = Math.max(lo, -rest / slope);
         else if (slope < 0) hi = Math.min(hi, -rest / slope);
         else if (rest < 0) hi = lo - 1;
-      };
-      bound(ex1, -oy * ey2);
-      bound(-ey1, oy * ex2);
-      bound(-(ex1 - ey1), 1 - oy * (ex2 - ey2));
+      }
       const pxFrom = Math.max(minX, Math.ceil(lo + x0 - 0.5 - 1e-9));
       const pxTo = Math.min(maxX, Math.floor(hi + x0 - 0.5 + 1e-9));
       for (let px = pxFrom; px <= pxTo; px++) {
@@ -622,47 +690,60 @@ class GhostGrid {
     const iy = Math.floor(fy);
     const tx = fx - ix;
     const ty = fy - iy;
-    const put = (x: number, y: number, wgt: number) => {
-      if (x < 0 || y < 0 || x >= w || y >= h || wgt <= 0) return;
+    touch(layer, ix, iy, ix + 1, iy + 1);
+    for (let k = 0; k < 4; k++) {
+      const x = ix + (k & 1);
+      const y = iy + (k >> 1);
+      const wgt = (k & 1 ? tx : 1 - tx) * (k >> 1 ? ty : 1 - ty);
+      if (x < 0 || y < 0 || x >= w || y >= h || wgt <= 0) continue;
       const i = (y * w + x) * stride;
       d[i] += amount * wgt * scale[0];
       d[i + 1] += amount * wgt * scale[1];
       d[i + 2] += amount * wgt * scale[2];
-    };
-    put(ix, iy, (1 - tx) * (1 - ty));
-    put(ix + 1, iy, tx * (1 - ty));
-    put(ix, iy + 1, (1 - tx) * ty);
-    put(ix + 1, iy + 1, tx * ty);
+    }
   }
 }
 
 /**
- * Add a low-resolution layer to the image by bilinear interpolation. Layer values are densities
- * (per full-resolution pixel), so interpolating them keeps the energy.
+ * Add a layer to the next finer buffer (twice its resolution) by bilinear interpolation, over the
+ * part written since the last call, and clear that part. Values are densities per full-resolution
+ * pixel, so interpolating keeps the energy. `into`, when the target is itself a layer, has its
+ * written box and use mark extended.
  */
-function upsampleAdd(img: FloatImage, layer: Layer): void {
-  const { scale, w, h, data } = layer;
-  const out = img.data;
-  for (let y = 0; y < img.height; y++) {
-    const fy = Math.min(h - 1, Math.max(0, (y + 0.5) / scale - 0.5));
+function upsample2x(layer: Layer, out: Float32Array, ow: number, oh: number, stride: number, into: Layer | undefined): void {
+  const { w, h, data } = layer;
+  // target pixels whose bilinear footprint reaches a written layer pixel
+  const xa = Math.max(0, 2 * layer.bx0 - 1);
+  const xb = Math.min(ow - 1, 2 * layer.bx1 + 2);
+  const ya = Math.max(0, 2 * layer.by0 - 1);
+  const yb = Math.min(oh - 1, 2 * layer.by1 + 2);
+  if (into) {
+    touch(into, xa, ya, xb, yb);
+    into.used = true;
+  }
+  const row = new Float32Array(w * 3);
+  for (let y = ya; y <= yb; y++) {
+    const fy = Math.min(h - 1, Math.max(0, (y + 0.5) / 2 - 0.5));
     const y0 = Math.floor(fy);
     const y1 = Math.min(h - 1, y0 + 1);
     const ty = fy - y0;
-    for (let x = 0; x < img.width; x++) {
-      const fx = Math.min(w - 1, Math.max(0, (x + 0.5) / scale - 0.5));
+    // the layer row interpolated at this height, over the columns the span needs
+    const ca = Math.max(0, (xa >> 1) - 1);
+    const cb = Math.min(w - 1, (xb >> 1) + 1);
+    for (let i = ca * 3; i < (cb + 1) * 3; i++) row[i] = data[y0 * w * 3 + i] + (data[y1 * w * 3 + i] - data[y0 * w * 3 + i]) * ty;
+    let o = (y * ow + xa) * stride;
+    for (let x = xa; x <= xb; x++, o += stride) {
+      const fx = Math.min(w - 1, Math.max(0, (x + 0.5) / 2 - 0.5));
       const x0 = Math.floor(fx);
-      const x1 = Math.min(w - 1, x0 + 1);
+      const i0 = x0 * 3;
+      const i1 = Math.min(w - 1, x0 + 1) * 3;
       const tx = fx - x0;
-      const i00 = (y0 * w + x0) * 3;
-      const i01 = (y0 * w + x1) * 3;
-      const i10 = (y1 * w + x0) * 3;
-      const i11 = (y1 * w + x1) * 3;
-      const o = (y * img.width + x) * 4;
-      for (let c = 0; c < 3; c++) {
-        const top = data[i00 + c] + (data[i01 + c] - data[i00 + c]) * tx;
-        const bot = data[i10 + c] + (data[i11 + c] - data[i10 + c]) * tx;
-        out[o + c] += top + (bot - top) * ty;
-      }
+      out[o] += row[i0] + (row[i1] - row[i0]) * tx;
+      out[o + 1] += row[i0 + 1] + (row[i1 + 1] - row[i0 + 1]) * tx;
+      out[o + 2] += row[i0 + 2] + (row[i1 + 2] - row[i0 + 2]) * tx;
     }
+  }
+  for (let y = Math.max(0, layer.by0); y <= Math.min(h - 1, layer.by1); y++) {
+    data.fill(0, (y * w + Math.max(0, layer.bx0)) * 3, (y * w + Math.min(w - 1, layer.bx1) + 1) * 3);
   }
 }

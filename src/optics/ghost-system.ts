@@ -10,12 +10,15 @@ import { planPath, type PathPlan } from './trace.js';
 
 export type GhostQuality = 'draft' | 'low' | 'medium' | 'high';
 
-/** Ray grid cells per side and wavelength samples for each quality. */
-export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number }>> = {
-  draft: { grid: 12, wavelengths: 3 },
-  low: { grid: 16, wavelengths: 3 },
-  medium: { grid: 24, wavelengths: 5 },
-  high: { grid: 48, wavelengths: 7 },
+/**
+ * Ray grid cells per side and wavelength samples for each quality, and for faint ghosts (see
+ * FAINT_PEAK in elements/ghosts.ts) the lighter grid and wavelength count used below `high`.
+ */
+export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number; faintGrid: number; faintWavelengths: number }>> = {
+  draft: { grid: 12, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },
+  low: { grid: 16, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },
+  medium: { grid: 24, wavelengths: 5, faintGrid: 12, faintWavelengths: 3 },
+  high: { grid: 48, wavelengths: 7, faintGrid: 48, faintWavelengths: 7 },
 };
 
 export interface RankedGhost extends GhostPair {
@@ -35,6 +38,14 @@ export interface RankedGhost extends GhostPair {
   stopCrossings: { a: number; b: number }[];
   /** one ray-tracing plan per wavelength sample */
   plans: PathPlan[];
+  /** plans for the faint-ghost wavelength samples */
+  faintPlans: PathPlan[];
+  /**
+   * RGB factors that give the faint-ghost samples the colour the full samples give (both from
+   * R_i R_j at normal incidence): fewer samples see the coatings' reflectance curves at fewer
+   * points, which shifts a ghost's tint without this
+   */
+  faintColour: [number, number, number];
 }
 
 export interface LensSystem {
@@ -45,6 +56,9 @@ export interface LensSystem {
   stopRatio: number;
   samples: SpectralSample[];
   grid: number;
+  /** wavelength samples and grid for faint ghosts */
+  faintSamples: SpectralSample[];
+  faintGrid: number;
   /** every ghost ranked, strongest first (plans only for those kept) */
   ranked: RankedGhost[];
   /** how many are rendered: strength at or above the threshold */
@@ -93,16 +107,31 @@ export function prepareLens(lensIn: LensModel, quality: GhostQuality, threshold:
     // the crossing that limits the bundle most (largest |a_c|) sets where it enters
     const limiting = crossings.reduce((best, c) => (Math.abs(c.a) > Math.abs(best.a) ? c : best), crossings[0]);
     const entryShift = limiting && Math.abs(limiting.a) > 1e-9 ? limiting.b / limiting.a : 0;
-    return { ...pair, k: (m[1] - m[0] * entryShift) / f, a: m[0], strength, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [] };
+    return { ...pair, k: (m[1] - m[0] * entryShift) / f, a: m[0], strength, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [], faintPlans: [], faintColour: [1, 1, 1] };
   });
   ranked.sort((x, y) => y.strength - x.strength || x.i - y.i || x.j - y.j);
+  const faintSamples = spectralSamples(q.faintWavelengths);
   let kept = 0;
   for (const g of ranked) {
     if (g.strength < threshold) break;
     g.plans = samples.map((s) => planPath(lens, ghostPath(lens, g), s.nm, 1));
+    g.faintPlans = faintSamples === samples ? g.plans : faintSamples.map((s) => planPath(lens, ghostPath(lens, g), s.nm, 1));
+    const full = pairColour(lens, g, samples);
+    const lite = pairColour(lens, g, faintSamples);
+    g.faintColour = [0, 1, 2].map((c) => (lite[c] > 0 ? full[c] / lite[c] : 1)) as [number, number, number];
     kept++;
   }
-  return { lens, focalLengthMm: f, stop, stopRatio, samples, grid: q.grid, ranked, kept };
+  return { lens, focalLengthMm: f, stop, stopRatio, samples, grid: q.grid, faintSamples, faintGrid: q.faintGrid, ranked, kept };
+}
+
+/** R_i R_j at normal incidence weighted into RGB over the given wavelength samples. */
+function pairColour(lens: LensModel, pair: GhostPair, samples: SpectralSample[]): [number, number, number] {
+  const out: [number, number, number] = [0, 0, 0];
+  for (const s of samples) {
+    const r = surfaceR(lens, pair.i, s.nm, true) * surfaceR(lens, pair.j, s.nm, false);
+    for (let c = 0; c < 3; c++) out[c] += r * s.rgb[c];
+  }
+  return out;
 }
 
 /** Paraxial (A, B) from the entrance plane to the stop plane at path event e. */

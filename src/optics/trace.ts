@@ -133,10 +133,11 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   out.vignette = 0;
   out.throughput = 1;
   out.margin = 1;
+  let vig2 = 0;
   if (plan.hoodRadius > 0 && dz > 0) {
     // the hood's opening counts like a clear aperture (a ray launched behind it is not checked)
     const t = (plan.hoodZ - pz) / dz;
-    if (t >= 0) out.vignette = Math.hypot(px + t * dx, py + t * dy) / plan.hoodRadius;
+    if (t >= 0) vig2 = ((px + t * dx) ** 2 + (py + t * dy) ** 2) / (plan.hoodRadius * plan.hoodRadius);
   }
   for (let e = 0; e < plan.n; e++) {
     const zv = plan.z[e];
@@ -178,7 +179,6 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       pz += t * dz;
     }
     if (points) points.push(pz, py);
-    const h = Math.sqrt(px * px + py * py);
     if (plan.stop[e]) {
       if (out.stopCount < 3) {
         out.stopU[out.stopCount] = px / plan.stopRadiusMm;
@@ -187,8 +187,10 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       }
       continue;
     }
-    const v = h / plan.semi[e];
-    if (v > out.vignette) out.vignette = v;
+    // the squared ratio here (no square root per surface); the root is taken once at the end
+    const semi = plan.semi[e];
+    const v2 = (px * px + py * py) / (semi * semi);
+    if (v2 > vig2) vig2 = v2;
     // orient the normal against the ray
     let cosi = -(nx * dx + ny * dy + nz * dz);
     if (cosi < 0) {
@@ -220,6 +222,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       out.throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
     }
   }
+  out.vignette = Math.sqrt(vig2);
   if (dz <= 1e-12 || !Number.isFinite(px + py + dx + dy)) return false;
   const t = (plan.sensorZ - pz) / dz;
   out.x = px + t * dx;

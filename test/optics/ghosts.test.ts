@@ -269,3 +269,48 @@ describe('ghost geometry and brightness', () => {
     expect(far).toBe(0);
 });
 });
+
+describe('faint ghosts are drawn lighter below high quality, and still right', () => {
+  // a dim light off axis: every ghost is under the faint threshold, so each is traced on the
+  // lighter grid with fewer wavelengths (their colour matched by traced throughput) and drawn a
+  // resolution step coarser; the full path (faintPeak 0) is the reference, itself checked above
+  // against the energy of Hullin et al. 2011
+  const system = prepareLens(preset('zoom-like-35'), 'medium', 1e-6);
+  const draw = (sys: LensSystem, faintPeak: number | undefined) => {
+    const img = new FloatImage(W, H);
+    addGhosts(img, sys, view, { xPx: W * 0.8, yPx: H * 0.25, flux: [400, 400, 400] }, { fNumber: 4, gain: 1, quality: 'medium', ...(faintPeak === undefined ? {} : { faintPeak }) });
+    return img;
+  };
+  it('keeps the energy of every channel within 1.5%', () => {
+    const a = draw(system, 0).channelSums();
+    const b = draw(system, undefined).channelSums();
+    for (let c = 0; c < 3; c++) expect(Math.abs(b[c] / a[c] - 1)).toBeLessThan(0.015);
+  });
+  it('keeps each ghost in place (centroid within a pixel) with its energy within 6%', () => {
+    let checked = 0;
+    for (let g = 0; g < system.kept; g++) {
+      const one = { ...system, ranked: [system.ranked[g]], kept: 1 };
+      const a = moments(draw(one, 0));
+      if (!(a.sum > 1e-3)) continue; // ghosts that barely reach the frame
+      const b = moments(draw(one, undefined));
+      expect(Math.abs(b.sum / a.sum - 1)).toBeLessThan(0.06);
+      expect(Math.hypot(b.cx - a.cx, b.cy - a.cy)).toBeLessThan(1);
+      checked++;
+    }
+    expect(checked).toBeGreaterThanOrEqual(5);
+  });
+  it('differs from the full drawing by little pixel by pixel (RMS under 5% of the peak)', () => {
+    const full = draw(system, 0);
+    const lite = draw(system, undefined);
+    let s2 = 0;
+    let peak = 0;
+    for (let i = 0; i < full.data.length; i += 4) {
+      for (let c = 0; c < 3; c++) {
+        s2 += (full.data[i + c] - lite.data[i + c]) ** 2;
+        peak = Math.max(peak, full.data[i + c]);
+      }
+    }
+    expect(peak).toBeGreaterThan(0);
+    expect(Math.sqrt(s2 / ((full.data.length / 4) * 3)) / peak).toBeLessThan(0.05);
+  });
+});
