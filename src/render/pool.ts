@@ -39,10 +39,16 @@ export class RenderPool {
   /** milliseconds from spawning each worker to its first ready message */
   readonly startupMs: number[] = [];
 
+  private assets: ShotAssets | undefined;
+
+  /**
+   * `assets` is called once, after the first workers are spawned: the workers load their modules
+   * on the other cores while this thread prepares the lens and the diffraction kernel.
+   */
   constructor(
     readonly size: number,
     private readonly shot: ResolvedShot,
-    private readonly assets: ShotAssets,
+    private readonly makeAssets: () => ShotAssets,
     private readonly callbacks: PoolCallbacks,
     private readonly fault?: WorkerFault,
   ) {}
@@ -56,8 +62,12 @@ export class RenderPool {
     worker.on('exit', (code) => {
       if (code !== 0 || slot.busy) this.onDeath(slot);
     });
-    worker.postMessage({ type: 'init', shot: this.shot, assets: this.assets } satisfies ToWorker);
+    if (this.assets) this.init(slot);
     return slot;
+  }
+
+  private init(slot: Slot): void {
+    slot.worker.postMessage({ type: 'init', shot: this.shot, assets: this.assets! } satisfies ToWorker);
   }
 
   private onMessage(slot: Slot, msg: FromWorker, born: number): void {
@@ -117,6 +127,8 @@ export class RenderPool {
     const done = new Promise<void>((resolve) => (this.settle = resolve));
     const n = Math.min(this.size, Math.max(1, jobs.length));
     for (let i = 0; i < n; i++) this.slots.push(this.spawn());
+    this.assets = this.makeAssets();
+    for (const slot of this.slots) this.init(slot);
     if (signal?.aborted) this.stopping = true;
     this.pump();
     return done;

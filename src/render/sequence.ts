@@ -172,7 +172,7 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
       }
     }
   } else {
-    const pool = new RenderPool(jobs, shot, shotAssets(shot), { done, failed }, opts.fault);
+    const pool = new RenderPool(jobs, shot, () => shotAssets(shot), { done, failed }, opts.fault);
     try {
       await pool.run(todo, opts.signal);
     } finally {
