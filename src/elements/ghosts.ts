@@ -134,7 +134,7 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   const layers = layersFor(img.width, img.height);
   const centre = Math.floor(system.samples.length / 2);
   // a coarse grid finds each ghost's ray box; the fine grid traces and draws it
-  const coarse = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
+  const coarseFull = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
   const grid = new GhostGrid(system, system.grid, view, sx, sy, stopRadius, pxX, pxY, shape);
   const faintGrid = system.faintGrid === system.grid ? grid : new GhostGrid(system, system.faintGrid, view, sx, sy, stopRadius, pxX, pxY, shape);
   for (let g = 0; g < system.kept; g++) {
@@ -145,12 +145,16 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
       if (stats) stats.skipped++;
       continue;
     }
-    const faint = multiRes && peak < (settings.faintPeak ?? FAINT_PEAK);
+    const faintPeak = settings.faintPeak ?? FAINT_PEAK;
+    const coarse = coarseFull;
     const box = coarse.fitBox(ghost, ghost.plans[centre]);
     if (!box) {
       if (stats) stats.skipped++;
       continue;
     }
+    // faint by the paraxial estimate and by the traced one: a ghost can focus into bright caustic
+    // rims that the paraxial peak does not see, and those need the full grid and spectrum
+    const faint = multiRes && peak < faintPeak && (lum / epArea) * coarse.tracedPeak() * settings.gain < faintPeak;
     let level = 0;
     if (multiRes) {
       const size = coarse.passingSizePx();
@@ -367,6 +371,29 @@ class GhostGrid {
     }
     if (!(lite[0] > 0 && lite[1] > 0 && lite[2] > 0 && full[0] > 0)) return ghost.faintColour;
     return [full[0] / lite[0], full[1] / lite[1], full[2] / lite[2]];
+  }
+
+  /**
+   * The largest irradiance of the last trace over passing rays (per px^2, per unit of entrance
+   * irradiance): the vertices' area ratios, and for cells folded below a pixel (caustics) their
+   * whole flux in one pixel.
+   */
+  tracedPeak(): number {
+    const { n, side, valid, vx, vy } = this;
+    let peak = 0;
+    for (let v = 0; v < side * side; v++) if (this.passes(v, 0) && this.energy[v] > peak) peak = this.energy[v];
+    for (let j = 0; j < n; j++) {
+      for (let i = 0; i < n; i++) {
+        const a = j * side + i;
+        const b = a + 1;
+        const c = a + side + 1;
+        const d = a + side;
+        if (!(valid[a] && valid[b] && valid[c] && valid[d]) || !this.passes(a, 0)) continue;
+        const area = 0.5 * Math.abs((vx[c] - vx[a]) * (vy[d] - vy[b]) - (vx[d] - vx[b]) * (vy[c] - vy[a]));
+        if (area < SPLAT_AREA_PX) peak = Math.max(peak, this.cellEntrance * this.thr[a]);
+      }
+    }
+    return peak;
   }
 
   /** Largest side (px) of the region whose rays pass, from the last trace. */
