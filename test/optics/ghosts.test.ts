@@ -299,6 +299,27 @@ describe('faint ghosts are drawn lighter below high quality, and still right', (
     }
     expect(checked).toBeGreaterThanOrEqual(5);
   });
+  it('keeps bright caustic rims (which the paraxial peak misses) in full: near the frame corner too, the drawing stays within a few display codes', () => {
+    // a sun-bright light near the top-right corner: among the ghosts the paraxial estimate calls
+    // faint, some focus into bright rims; the traced peak catches them (compared in 8-bit sRGB
+    // codes over black, IEC 61966-2-1, the strictest view)
+    const v: GhostView = { widthPx: 960, heightPx: 540, pixelAspect: 1, opticalCentre: [480, 270] };
+    const flux = 2 ** 14 * Math.PI * 25;
+    const at = (faintPeak: number | undefined) => {
+      const img = new FloatImage(960, 540);
+      addGhosts(img, system, v, { xPx: 950, yPx: 50, flux: [flux, flux, flux] }, { fNumber: 4, gain: 1, quality: 'medium', ...(faintPeak === undefined ? {} : { faintPeak }) });
+      return img;
+    };
+    const a = at(0);
+    const b = at(undefined);
+    const code = (x: number) => Math.round(255 * (x <= 0.0031308 ? 12.92 * Math.max(0, x) : 1.055 * Math.min(1, x) ** (1 / 2.4) - 0.055));
+    const diffs: number[] = [];
+    for (let i = 0; i < a.data.length; i += 4) for (let c = 0; c < 3; c++) diffs.push(Math.abs(code(a.data[i + c]) - code(b.data[i + c])));
+    diffs.sort((x, y) => x - y);
+    expect(diffs[Math.floor(diffs.length * 0.999)]).toBeLessThanOrEqual(16);
+    expect(diffs[diffs.length - 1]).toBeLessThanOrEqual(40);
+  });
+
   it('differs from the full drawing by little pixel by pixel (RMS under 5% of the peak)', () => {
     const full = draw(system, 0);
     const lite = draw(system, undefined);
