@@ -379,20 +379,8 @@ class GhostGrid {
    * whole flux in one pixel.
    */
   tracedPeak(): number {
-    const { n, side, valid, vx, vy } = this;
-    let peak = 0;
-    for (let v = 0; v < side * side; v++) if (this.passes(v, 0) && this.energy[v] > peak) peak = this.energy[v];
-    for (let j = 0; j < n; j++) {
-      for (let i = 0; i < n; i++) {
-        const a = j * side + i;
-        const b = a + 1;
-        const c = a + side + 1;
-        const d = a + side;
-        if (!(valid[a] && valid[b] && valid[c] && valid[d]) || !this.passes(a, 0)) continue;
-        const area = 0.5 * Math.abs((vx[c] - vx[a]) * (vy[d] - vy[b]) - (vx[d] - vx[b]) * (vy[c] - vy[a]));
-        if (area < SPLAT_AREA_PX) peak = Math.max(peak, this.cellEntrance * this.thr[a]);
-      }
-    }
+    let peak = this.foldedPeak;
+    for (let v = 0; v < this.side * this.side; v++) if (this.passes(v, 0) && this.energy[v] > peak) peak = this.energy[v];
     return peak;
   }
 
@@ -465,6 +453,7 @@ class GhostGrid {
     const counts = this.counts;
     counts.fill(0);
     const { vx, vy, valid } = this;
+    this.foldedPeak = 0;
     for (let j = 0; j < n; j++) {
       for (let i = 0; i < n; i++) {
         const a = j * side + i;
@@ -473,7 +462,11 @@ class GhostGrid {
         const d = a + side;
         if (!(valid[a] && valid[b] && valid[c] && valid[d])) continue;
         const area = 0.5 * Math.abs((vx[c] - vx[a]) * (vy[d] - vy[b]) - (vx[d] - vx[b]) * (vy[c] - vy[a]));
-        if (area < SPLAT_AREA_PX) continue;
+        if (area < SPLAT_AREA_PX) {
+          // a folded cell (a caustic) puts its whole flux into about one pixel
+          if (this.passes(a, 0)) this.foldedPeak = Math.max(this.foldedPeak, entrance * this.thr[a]);
+          continue;
+        }
         const ratio = entrance / area;
         e[a] += ratio;
         e[b] += ratio;
@@ -490,6 +483,8 @@ class GhostGrid {
 
   /** entrance area of one grid cell, mm^2 (foreshortened) */
   cellEntrance = 0;
+  /** the largest flux per pixel of a passing cell folded below a pixel, from the last trace */
+  private foldedPeak = 0;
 
   draw(img: FloatImage, layer: Layer, scale: [number, number, number]): void {
     const { n, side, valid, vig } = this;
