@@ -148,7 +148,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         if (result.interrupted) break;
         const r = await renderSequence(seq.shot, {
           frames,
-          template: template && seq.name !== 'combined' ? passTemplate(template, seq.name as never) : template,
+          template: template ? writtenTemplate(seq, template) : undefined,
           shard,
           jobs,
           force: opts.force,
@@ -192,17 +192,15 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         if (!opts.quiet) io.stderr(`flash screening needs every frame in order: run straylight flashes ${shotFile} when all shards are done\n`);
       } else if (!result.interrupted && result.failed.length === 0) {
         // separate passes are judged together, as the viewer will see them: read back and summed
-        const report = sequences.length === 1 ? analyser.report() : screenSequences(sequences.map((q) => (template && q.name !== 'combined' ? passTemplate(template, q.name as never) : q.shot.output.template)), frames, shot).report();
+        const report = sequences.length === 1 ? analyser.report() : screenSequences(sequences.map((q) => writtenTemplate(q, template)), frames, shot).report();
         if (report.spans.length > 0) {
           io.stderr(`WARNING: this pass may flash dangerously for viewers with photosensitive epilepsy.\n${formatFlashReport(report, timecodeOf(shot), 'over black')}`);
           if (opts.failOnFlash) setExit(ExitCode.flashes);
         }
       }
       if (opts.movie && !result.interrupted && result.failed.length === 0) {
-        const templates = sequences.map((q) => (template ? (q.name !== 'combined' ? passTemplate(template, q.name as never) : template) : q.shot.output.template));
-        const range: number[] = [];
-        for (let f = frames.first; f <= frames.last; f++) range.push(f);
-        const movie = await writeMovie({ templates, frames: range, rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect }, opts.movie, { over: opts.over, ffmpeg, signal: io.signal });
+        const templates = sequences.map((q) => writtenTemplate(q, template));
+        const movie = await writeMovie({ templates, frames: frameList(frames), rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect }, opts.movie, { over: opts.over, ffmpeg, signal: io.signal });
         if (!opts.quiet) io.stderr(`movie: ${movie.file} (${movie.frames} frames, ${movie.kind === 'h264' ? 'H.264' : 'ProRes 4444 with alpha'}${opts.over ? ', over the plate' : ''})\n`);
       }
     });
@@ -501,16 +499,21 @@ function thumbnail(file: string): string {
 /** Screen sequences summed frame by frame (separate passes, as they will be seen together). */
 function screenSequences(templates: string[], range: FrameRange, shot: ResolvedShot): FlashAnalyser {
   const a = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
-  for (let f = range.first; f <= range.last; f++) {
-    let sum: Float32Array | undefined;
-    for (const t of templates) {
-      const p = readFrameLinear(expandFramePath(t, f));
-      if (!sum) sum = p.rgb;
-      else for (let i = 0; i < sum.length; i++) sum[i] += p.rgb[i];
-    }
-    a.addFrame(f, sum!, 3);
-  }
+  const src = { templates, frames: frameList(range), rate: shot.frame.rate, pixelAspect: shot.frame.pixelAspect };
+  for (const f of src.frames) a.addFrame(f, readSource(src, f).rgb, 3);
   return a;
+}
+
+function frameList(range: FrameRange): number[] {
+  const out: number[] = [];
+  for (let f = range.first; f <= range.last; f++) out.push(f);
+  return out;
+}
+
+/** Where a render writes a sequence: the --out template (per pass when passes are separate), or the shot's own. */
+function writtenTemplate(seq: { name: string; shot: ResolvedShot }, template: string | undefined): string {
+  if (!template) return seq.shot.output.template;
+  return seq.name === 'combined' ? template : passTemplate(template, seq.name as never);
 }
 
 export async function run(argv: string[], io: CliIO): Promise<number> {
