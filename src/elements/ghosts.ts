@@ -478,7 +478,10 @@ class GhostGrid {
         counts[d]++;
       }
     }
-    for (let v = 0; v < side * side; v++) e[v] = counts[v] ? (e[v] / counts[v]) * this.thr[v] : 0;
+    for (let v = 0; v < side * side; v++) {
+      const value = counts[v] ? (e[v] / counts[v]) * this.thr[v] : 0;
+      e[v] = Number.isFinite(value) ? value : 0;
+    }
   }
 
   /** entrance area of one grid cell, mm^2 (foreshortened) */

@@ -217,13 +217,22 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       // bare Fresnel transmission at this angle (Smith eq. 11.1), times the coating's gain
       const n1 = plan.nIn[e];
       const n2 = plan.nOut[e];
-      const rs = (n1 * cosi - n2 * cost) / (n1 * cosi + n2 * cost);
-      const rp = (n2 * cosi - n1 * cost) / (n2 * cosi + n1 * cost);
-      out.throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
+      // at grazing incidence (and past total internal reflection, where the ray goes on at grazing)
+      // nothing is transmitted; the formulas would divide 0 by 0 there
+      const ds = n1 * cosi + n2 * cost;
+      const dp = n2 * cosi + n1 * cost;
+      if (ds > 0 && dp > 0) {
+        const rs = (n1 * cosi - n2 * cost) / ds;
+        const rp = (n2 * cosi - n1 * cost) / dp;
+        out.throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
+      } else out.throughput = 0;
     }
   }
   out.vignette = Math.sqrt(vig2);
   if (dz <= 1e-12 || !Number.isFinite(px + py + dx + dy)) return false;
+  // a ray continued past a miss or total internal reflection (margin < 0) can meet later surfaces
+  // at impossible angles; it carries no light (and must not carry NaN into the interpolation)
+  if (!(out.throughput >= 0) || !Number.isFinite(out.throughput)) out.throughput = 0;
   const t = (plan.sensorZ - pz) / dz;
   out.x = px + t * dx;
   out.y = py + t * dy;

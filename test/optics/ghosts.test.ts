@@ -335,3 +335,27 @@ describe('faint ghosts are drawn lighter below high quality, and still right', (
     expect(Math.sqrt(s2 / ((full.data.length / 4) * 3)) / peak).toBeLessThan(0.05);
   });
 });
+
+describe('ghost pixels are always finite numbers', () => {
+  // rays continued past a missed sphere or total internal reflection can meet later surfaces at
+  // impossible angles; they must carry no light rather than NaN (which a PNG shows as black
+  // holes and an OpenEXR passes on to the compositor). Every preset, lights inside, at and far
+  // past the frame edge, several f-numbers.
+  for (const name of presetNames()) {
+    it(name, () => {
+      const model = preset(name);
+      const v: GhostView = { widthPx: 480, heightPx: 270, pixelAspect: 1, opticalCentre: [240, 135] };
+      const img = new FloatImage(480, 270);
+      let bad = 0;
+      for (const quality of ['draft', 'medium'] as const) {
+        const system = prepareLens(model, quality, 1e-6);
+        for (let k = 0; k < 12; k++) {
+          const flux = 2 ** 14 * Math.PI * 25;
+          addGhosts(img, system, v, { xPx: -200 + ((k * 37) % 900), yPx: -150 + ((k * 53) % 600), flux: [flux, flux, flux] }, { fNumber: 2.8 + (k % 5), gain: 1, quality });
+        }
+      }
+      for (const x of img.data) if (!Number.isFinite(x)) bad++;
+      expect(bad).toBe(0);
+    });
+  }
+});
