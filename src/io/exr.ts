@@ -25,6 +25,9 @@ export interface ExrOptions {
 }
 
 const COMPRESSION_CODE: Record<ExrCompression, number> = { none: 0, zips: 2, zip: 3 };
+/** the largest finite half (IEEE 754 binary16) */
+const HALF_MAX = 65504;
+
 /** zlib level for ZIP/ZIPS, by measurement at 1920x1080 half RGB: level 4 took 270 ms for 1.51 MB,
  * level 6 twice as long for 1.17 MB; re-render speed matters more than disk for passes */
 const ZIP_LEVEL = 4;
@@ -175,7 +178,10 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
         for (let x = 0; x < width; x++) {
           const i = row + x * 4;
           const v = off < 0 ? (zeroAlpha ? 0 : passAlpha(src[i], src[i + 1], src[i + 2])) : src[i + off];
-          words[o++] = size === 2 ? toHalf(v) : v;
+          // never hand a compositor NaN or infinity (the PNG quantiser clips the same way): NaN is
+          // 0, and half's range ends at its largest finite value
+          const w = v === v ? v : 0;
+          words[o++] = size === 2 ? toHalf(w > HALF_MAX ? HALF_MAX : w < -HALF_MAX ? -HALF_MAX : w) : Number.isFinite(w) ? w : w > 0 ? 3.4028234663852886e38 : -3.4028234663852886e38;
         }
       }
     }

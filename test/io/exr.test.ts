@@ -94,6 +94,25 @@ output: { path: "o/f.####.exr", format: exr }
     expect(code).toBe(0);
   });
 
+  it('never writes NaN or infinity: NaN becomes 0, too-bright values the largest finite number (as the PNG clips)', () => {
+    const img = new FloatImage(4, 1);
+    img.data.set([NaN, 1e6, Infinity, 0, -Infinity, 0.5, 2, 0, 1, 1, 1, 0, 0, 0, 0, 0]);
+    const f = path.join(tempDir(), 'n.exr');
+    for (const type of ['half', 'float'] as const) {
+      writeFileSync(f, encodeExr(img, { type, compression: 'none', alpha: 'none', pixelAspect: 1 }));
+      const { out } = tool('oiiotool', ['--stats', f]);
+      // OpenImageIO counts non-finite values in its statistics
+      expect(out).toMatch(/NanCount: 0 0 0/);
+      expect(out).toMatch(/InfCount: 0 0 0/);
+      // oiiotool lists R, G, B: R held NaN (now 0) and -infinity, G 1e6 (past half's range), B +infinity
+      const stat = (name: string) => out.split('\n').find((l) => l.includes(`Stats ${name}:`))!.split(':')[1].trim().split(/\s+/).map(Number);
+      const top = type === 'half' ? 65504 : 3.4028234663852886e38;
+      expect(stat('Max')[2] / top).toBeCloseTo(1, 5);
+      expect(stat('Min')[0] / -top).toBeCloseTo(1, 5);
+      expect(stat('Max')[1]).toBe(type === 'half' ? 65504 : 1e6);
+    }
+  });
+
   it('the command line picks the format and alpha: --format, an --out ending in .exr, --alpha', async () => {
     const dir = tempDir();
     const shot = path.join(dir, 's.yaml');
