@@ -747,6 +747,18 @@ function upsample2x(layer: Layer, out: Float32Array, ow: number, oh: number, str
     into.used = true;
   }
   const row = new Float32Array(w * 3);
+  // the horizontal taps and weights repeat on every row: work them out once
+  const span = xb - xa + 1;
+  const i0s = new Int32Array(span);
+  const i1s = new Int32Array(span);
+  const txs = new Float32Array(span);
+  for (let x = xa; x <= xb; x++) {
+    const fx = Math.min(w - 1, Math.max(0, (x + 0.5) / 2 - 0.5));
+    const x0 = Math.floor(fx);
+    i0s[x - xa] = x0 * 3;
+    i1s[x - xa] = Math.min(w - 1, x0 + 1) * 3;
+    txs[x - xa] = fx - x0;
+  }
   for (let y = ya; y <= yb; y++) {
     const fy = Math.min(h - 1, Math.max(0, (y + 0.5) / 2 - 0.5));
     const y0 = Math.floor(fy);
@@ -757,12 +769,10 @@ function upsample2x(layer: Layer, out: Float32Array, ow: number, oh: number, str
     const cb = Math.min(w - 1, (xb >> 1) + 1);
     for (let i = ca * 3; i < (cb + 1) * 3; i++) row[i] = data[y0 * w * 3 + i] + (data[y1 * w * 3 + i] - data[y0 * w * 3 + i]) * ty;
     let o = (y * ow + xa) * stride;
-    for (let x = xa; x <= xb; x++, o += stride) {
-      const fx = Math.min(w - 1, Math.max(0, (x + 0.5) / 2 - 0.5));
-      const x0 = Math.floor(fx);
-      const i0 = x0 * 3;
-      const i1 = Math.min(w - 1, x0 + 1) * 3;
-      const tx = fx - x0;
+    for (let k = 0; k < span; k++, o += stride) {
+      const i0 = i0s[k];
+      const i1 = i1s[k];
+      const tx = txs[k];
       out[o] += row[i0] + (row[i1] - row[i0]) * tx;
       out[o + 1] += row[i0 + 1] + (row[i1 + 1] - row[i0 + 1]) * tx;
       out[o + 2] += row[i0 + 2] + (row[i1 + 2] - row[i0 + 2]) * tx;
