@@ -654,10 +654,8 @@ class GhostGrid {
       const pxFrom = Math.max(minX, Math.ceil(lo + x0 - 0.5 - 1e-9));
       const pxTo = Math.min(maxX, Math.floor(hi + x0 - 0.5 + 1e-9));
       for (let px = pxFrom; px <= pxTo; px++) {
+        // inside the triangle by construction of the span (its barycentric weights are >= 0)
         const ox = px + 0.5 - x0;
-        const wb = ox * ex1 - oy * ey2;
-        const wc = oy * ex2 - ox * ey1;
-        if (wb < 0 || wc < 0 || wb + wc > 1) continue;
         let mask = 1;
         for (let p = 0; p < polyPlanes; p++) {
           const cov = 0.5 + (p0[p] + ox * pgx[p] + oy * pgy[p]) * pinv[p];
