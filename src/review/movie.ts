@@ -41,7 +41,8 @@ export function ffmpegArgs(kind: MovieKind, width: number, height: number, src: 
   const tc = src.timecode ? framesToTimecode(src.timecode.startFrames + (src.frames[0] - src.timecode.first), src.rate, src.timecode.dropFrame) : undefined;
   const input = ['-f', 'rawvideo', '-pix_fmt', kind === 'prores4444' ? 'rgba64le' : 'rgb24', '-s', `${width}x${height}`, '-framerate', `${num}/${den}`, '-i', '-'];
   // convert with the Rec.709 matrix, and say so in the stream (setparams: the encoders take tags from the frames)
-  const yuv = 'scale=out_color_matrix=bt709:out_range=tv,setparams=color_primaries=bt709:color_trc=iec61966-2-1:colorspace=bt709:range=tv';
+  // and mark the pixel aspect (anamorphic frames are stored squeezed; players desqueeze them)
+  const yuv = `scale=out_color_matrix=bt709:out_range=tv,setparams=color_primaries=bt709:color_trc=iec61966-2-1:colorspace=bt709:range=tv,setsar=${src.pixelAspect}`;
   if (kind === 'prores4444') {
     return ['-hide_banner', '-loglevel', 'error', '-y', ...input, '-vf', yuv, '-c:v', 'prores_ks', '-profile:v', '4444', '-pix_fmt', 'yuva444p10le', '-alpha_bits', '16', '-vendor', 'apl0', ...(tc ? ['-timecode', tc] : []), '-f', 'mov', out];
   }

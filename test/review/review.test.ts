@@ -114,6 +114,18 @@ describe('contact sheets', () => {
     expect(corner).toBeLessThanOrEqual(131);
   });
 
+  it('shows anamorphic frames desqueezed: a 2:1 pixel aspect doubles the tile width', async () => {
+    const dir = tempDir();
+    const f = shot(dir, { last: 2 });
+    writeFileSync(f, readFileSync(f, 'utf8').replace('first: 1, last: 2,', 'first: 1, last: 2, pixel_aspect: 2,'));
+    expect((await cli(['render', f, '--quiet'])).code).toBe(0);
+    expect((await cli(['sheet', f, '-o', path.join(dir, 's.png')])).code).toBe(0);
+    const png = decode(readFileSync(path.join(dir, 's.png')));
+    const { margin, textScale, labelGap } = SHEET_LAYOUT;
+    // 64x36 stored pixels twice as wide as tall: shown 128x36, two tiles in a row
+    expect([png.width, png.height]).toEqual([2 * margin + 2 * 128 + SHEET_LAYOUT.gap, 2 * margin + 36 + labelGap + GLYPH_H * textScale]);
+  });
+
   it('a missing plate frame is a clear error and writes no sheet', async () => {
     const dir = tempDir();
     const f = shot(dir, { last: 2 });
@@ -167,6 +179,16 @@ describe('review movies through ffmpeg', () => {
     expect(y.status, String(y.stderr)).toBe(0);
     const rgb = y.stdout as Buffer;
     expect(Math.abs(rgb[(35 * 64 + 63) * 3] - 128)).toBeLessThanOrEqual(3);
+  });
+
+  it('an anamorphic shot\'s movie carries its 2:1 pixel aspect, so players show it desqueezed', async () => {
+    const dir = tempDir();
+    const f = shot(dir, { last: 2 });
+    writeFileSync(f, readFileSync(f, 'utf8').replace('first: 1, last: 2,', 'first: 1, last: 2, pixel_aspect: 2,'));
+    expect((await cli(['render', f, '--quiet', '--movie', path.join(dir, 'm.mov')])).code).toBe(0);
+    const r = spawnSync('ffprobe', ['-v', 'error', '-select_streams', 'v:0', '-show_entries', 'stream=sample_aspect_ratio,display_aspect_ratio', '-of', 'default=noprint_wrappers=1', path.join(dir, 'm.mov')], { encoding: 'utf8' });
+    expect(r.stdout).toContain('sample_aspect_ratio=2:1');
+    expect(r.stdout).toContain('display_aspect_ratio=32:9');
   });
 
   it('without ffmpeg: a clear message and exit 6 before anything is rendered', async () => {
