@@ -136,6 +136,7 @@ export function decodeExr(buf: Buffer): ExrImageData {
 
   const out = new Map<string, Float32Array>();
   for (const ch of channels) out.set(ch.name, new Float32Array(width * height));
+  const dsts = channels.map((ch) => out.get(ch.name)!);
   const lineBytes = channels.reduce((s, ch) => s + ch.size * dw, 0);
   const chunks = Math.ceil(dh / per);
   c.need(chunks * 8);
@@ -152,17 +153,27 @@ export function decodeExr(buf: Buffer): ExrImageData {
     const packed = buf.subarray(off + 8, off + 8 + size);
     const raw = size === rawSize ? packed : decompress(compression, packed, rawSize, channels, dw, lines);
     if (raw.length !== rawSize) throw new ExrFormatError(`chunk ${k}: ${raw.length} bytes after decompression, expected ${rawSize}`);
-    // lines one after another, each holding its channels in file order
+    // lines one after another, each holding its channels in file order; the data window's columns
+    // that fall inside the display window are x0..x1
+    const x0 = Math.max(0, wx0 - dx0);
+    const x1 = Math.min(dw, wx1 + 1 - dx0);
     let p = 0;
     for (let l = 0; l < lines; l++) {
       const row = y + l - wy0;
-      for (const ch of channels) {
-        const dst = out.get(ch.name)!;
-        for (let x = 0; x < dw; x++, p += ch.size) {
-          const col = dx0 + x - wx0;
-          if (row < 0 || row >= height || col < 0 || col >= width) continue;
-          const v = ch.type === 'half' ? HALF_TO_FLOAT[raw[p] | (raw[p + 1] << 8)] : ch.type === 'float' ? raw.readFloatLE(p) : raw.readUInt32LE(p);
-          dst[row * width + col] = v;
+      const inside = row >= 0 && row < height;
+      for (let c = 0; c < channels.length; c++) {
+        const ch = channels[c];
+        const lineStart = p;
+        p += ch.size * dw;
+        if (!inside || x1 <= x0) continue;
+        const dst = dsts[c];
+        const base = row * width + dx0 - wx0;
+        if (ch.type === 'half') {
+          for (let x = x0, q = lineStart + 2 * x0; x < x1; x++, q += 2) dst[base + x] = HALF_TO_FLOAT[raw[q] | (raw[q + 1] << 8)];
+        } else if (ch.type === 'float') {
+          for (let x = x0, q = lineStart + 4 * x0; x < x1; x++, q += 4) dst[base + x] = raw.readFloatLE(q);
+        } else {
+          for (let x = x0, q = lineStart + 4 * x0; x < x1; x++, q += 4) dst[base + x] = raw.readUInt32LE(q);
         }
       }
     }
@@ -194,10 +205,12 @@ function decompress(kind: string, packed: Buffer, rawSize: number, channels: Cha
 /** Undo ZIP/RLE preprocessing: a running sum (delta predictor), then evens and odds interleaved. */
 function unpredict(t: Buffer): Buffer {
   const n = t.length;
-  for (let i = 1; i < n; i++) t[i] = (t[i - 1] + t[i] - 128) & 0xff;
-  const out = Buffer.alloc(n);
+  let prev = t[0];
+  for (let i = 1; i < n; i++) t[i] = prev = (prev + t[i] - 128) & 0xff;
+  const out = Buffer.allocUnsafe(n);
   const half = (n + 1) >> 1;
-  for (let i = 0, a = 0, b = half; i < n; i++) out[i] = i & 1 ? t[b++] : t[a++];
+  for (let k = 0; k < half; k++) out[2 * k] = t[k];
+  for (let k = 0; half + k < n; k++) out[2 * k + 1] = t[half + k];
   return out;
 }
 

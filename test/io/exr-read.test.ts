@@ -154,6 +154,20 @@ describe('reading OpenEXR files written by oiiotool', () => {
     expect(z[13 * 40 + 24]).toBe(0);
   });
 
+  it('crops a data window that reaches past the display window (overscan)', () => {
+    const dir = tempDir();
+    const values = pattern(20, 10, 4);
+    writePfm(path.join(dir, 'in.pfm'), 20, 10, values);
+    const exr = path.join(dir, 'm.exr');
+    oiiotool([path.join(dir, 'in.pfm'), '--ch', 'Z=R', '-d', 'float', '--origin', '-4-2', '--fullsize', '10x6+0+0', '--compression', 'zips', '-o', exr]);
+    const img = decodeExr(readFileSync(exr));
+    expect([img.width, img.height]).toEqual([10, 6]);
+    const z = img.channels.get('Z')!;
+    // display (0, 0) is data pixel (4, 2); display (9, 5) is data pixel (13, 7)
+    expect(z[0]).toBe(values[(2 * 20 + 4) * 3]);
+    expect(z[5 * 10 + 9]).toBe(values[(7 * 20 + 13) * 3]);
+  });
+
   it('refuses tiled files and lossy compressions with a message that says what to do', () => {
     const dir = tempDir();
     writePfm(path.join(dir, 'in.pfm'), 8, 8, pattern(8, 8, 1));
