@@ -22,6 +22,10 @@ export interface PathPlan {
   nOut: Float64Array;
   reflect: Uint8Array;
   stop: Uint8Array;
+  /** 1 / radius (0 for a plane), 1 / semi-diameter^2 and nIn / nOut, so tracing multiplies */
+  invRadius: Float64Array;
+  invSemi2: Float64Array;
+  eta: Float64Array;
   /** for refractions: normal-incidence transmission 1 - R (coating included) over the bare one */
   transmit: Float64Array;
   /** for reflections: coating layers in the order the ray meets them */
@@ -68,6 +72,9 @@ export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiu
     nOut: new Float64Array(n),
     reflect: new Uint8Array(n),
     stop: new Uint8Array(n),
+    invRadius: new Float64Array(n),
+    invSemi2: new Float64Array(n),
+    eta: new Float64Array(n),
     transmit: new Float64Array(n),
     layers: [],
     reflectTable: [],
@@ -88,6 +95,9 @@ export function planPath(lens: LensModel, path: LightPath, nm: number, stopRadiu
     plan.nOut[e] = ev.dir === 1 ? back : front;
     plan.reflect[e] = ev.action === 'reflect' ? 1 : 0;
     plan.stop[e] = s.stop ? 1 : 0;
+    plan.invRadius[e] = s.radiusMm === 0 ? 0 : 1 / s.radiusMm;
+    plan.invSemi2[e] = 1 / (s.semiDiameterMm * s.semiDiameterMm);
+    plan.eta[e] = plan.nIn[e] / plan.nOut[e];
     const layers = ev.dir === 1 ? s.coating : [...s.coating].reverse();
     plan.layers.push(layers);
     plan.reflectTable.push(ev.action === 'reflect' && !s.stop ? reflectTable(plan.nIn[e], plan.nOut[e], layers, nm) : null);
@@ -131,8 +141,9 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   out.ok = false;
   out.stopCount = 0;
   out.vignette = 0;
-  out.throughput = 1;
-  out.margin = 1;
+  // kept in locals while tracing, stored at the end
+  let throughput = 1;
+  let margin = 1;
   let vig2 = 0;
   if (plan.hoodRadius > 0 && dz > 0) {
     // the hood's opening counts like a clear aperture (a ray launched behind it is not checked)
@@ -156,8 +167,9 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       const b = px * dx + py * dy + ocz * dz;
       const c = px * px + py * py + ocz * ocz - r * r;
       let disc = b * b - c;
-      const slack = disc / (r * r);
-      if (slack < out.margin) out.margin = slack;
+      const ir = plan.invRadius[e];
+      const slack = disc * ir * ir;
+      if (slack < margin) margin = slack;
       if (disc < 0) disc = 0; // continue at the tangent point; the margin says it missed
       const sq = Math.sqrt(disc);
       // of the two crossings, keep the one on the vertex's side of the centre: (z - cz) has the sign of -r
@@ -168,9 +180,9 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       px += t * dx;
       py += t * dy;
       pz += t * dz;
-      nx = px / r;
-      ny = py / r;
-      nz = (pz - cz) / r;
+      nx = px * ir;
+      ny = py * ir;
+      nz = (pz - cz) * ir;
       t = 0;
     }
     if (t !== 0) {
@@ -188,8 +200,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       continue;
     }
     // the squared ratio here (no square root per surface); the root is taken once at the end
-    const semi = plan.semi[e];
-    const v2 = (px * px + py * py) / (semi * semi);
+    const v2 = (px * px + py * py) * plan.invSemi2[e];
     if (v2 > vig2) vig2 = v2;
     // orient the normal against the ray
     let cosi = -(nx * dx + ny * dy + nz * dz);
@@ -200,14 +211,14 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       cosi = -cosi;
     }
     if (plan.reflect[e]) {
-      out.throughput *= lookupReflect(plan.reflectTable[e]!, cosi);
+      throughput *= lookupReflect(plan.reflectTable[e]!, cosi);
       dx += 2 * cosi * nx;
       dy += 2 * cosi * ny;
       dz += 2 * cosi * nz;
     } else {
-      const eta = plan.nIn[e] / plan.nOut[e];
+      const eta = plan.eta[e];
       let k = 1 - eta * eta * (1 - cosi * cosi);
-      if (k < out.margin) out.margin = k;
+      if (k < margin) margin = k;
       if (k < 0) k = 0; // total internal reflection: continue at grazing; the margin says it is lost
       const cost = Math.sqrt(k);
       const f = eta * cosi - cost;
@@ -224,15 +235,16 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       if (ds > 0 && dp > 0) {
         const rs = (n1 * cosi - n2 * cost) / ds;
         const rp = (n2 * cosi - n1 * cost) / dp;
-        out.throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
-      } else out.throughput = 0;
+        throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
+      } else throughput = 0;
     }
   }
   out.vignette = Math.sqrt(vig2);
-  if (dz <= 1e-12 || !Number.isFinite(px + py + dx + dy)) return false;
+  out.margin = margin;
   // a ray continued past a miss or total internal reflection (margin < 0) can meet later surfaces
   // at impossible angles; it carries no light (and must not carry NaN into the interpolation)
-  if (!(out.throughput >= 0) || !Number.isFinite(out.throughput)) out.throughput = 0;
+  out.throughput = throughput >= 0 && Number.isFinite(throughput) ? throughput : 0;
+  if (dz <= 1e-12 || !Number.isFinite(px + py + dx + dy)) return false;
   const t = (plan.sensorZ - pz) / dz;
   out.x = px + t * dx;
   out.y = py + t * dy;
