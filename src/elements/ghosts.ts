@@ -55,6 +55,8 @@ const QUARTER_RES_PX = 600;
  */
 export const FAINT_PEAK = 2e-3;
 const ONE: readonly [number, number, number] = [1, 1, 1];
+/** How far inside the barrel and geometry edges (in their own measures) a colour probe fades in. */
+const PROBE_FADE = 0.05;
 /** Where in a ghost's ray box colourMatch probes (fractions of the box). */
 const COLOUR_PROBES: readonly [number, number][] = [[0.5, 0.5], [0.3, 0.3], [0.7, 0.3], [0.3, 0.7], [0.7, 0.7]];
 /** Cells per side of the coarse grid that finds each ghost's ray box. */
@@ -356,20 +358,40 @@ class GhostGrid {
   colourMatch(ghost: RankedGhost, box: Box, system: LensSystem): readonly [number, number, number] {
     const full = [0, 0, 0];
     const lite = [0, 0, 0];
+    const pf = [0, 0, 0];
+    const pl = [0, 0, 0];
     const { dx, dy, dz, launch } = this;
     for (const [fx, fy] of COLOUR_PROBES) {
       const gx = box.x0 + fx * (box.x1 - box.x0);
       const gy = box.y0 + fy * (box.y1 - box.y0);
-      for (const [plans, samples, acc] of [[ghost.plans, system.samples, full], [ghost.faintPlans, system.faintSamples, lite]] as const) {
+      // a probe counts with the weight of its worst wavelength, fading out smoothly as any of them
+      // nears the barrel's or the geometry's edge: the same rays for both sets, and no jump in the
+      // ghost's colour from frame to frame as a probe crosses an edge
+      let weight = 1;
+      pf.fill(0);
+      pl.fill(0);
+      for (let set = 0; set < 2 && weight > 0; set++) {
+        const plans = set === 0 ? ghost.plans : ghost.faintPlans;
+        const samples = set === 0 ? system.samples : system.faintSamples;
+        const acc = set === 0 ? pf : pl;
         for (let w = 0; w < plans.length; w++) {
           plans[w].stopRadiusMm = this.stopRadius;
-          if (!traceRay(plans[w], gx - (launch * dx) / dz, gy - (launch * dy) / dz, -launch, dx, dy, dz, hit)) continue;
-          if (hit.vignette > 1 || hit.margin < 0) continue;
+          if (!traceRay(plans[w], gx - (launch * dx) / dz, gy - (launch * dy) / dz, -launch, dx, dy, dz, hit)) {
+            weight = 0;
+            break;
+          }
+          weight = Math.min(weight, (1 - hit.vignette) / PROBE_FADE, hit.margin / PROBE_FADE);
+          if (weight <= 0) break;
           for (let c = 0; c < 3; c++) acc[c] += hit.throughput * samples[w].rgb[c];
         }
       }
+      if (weight <= 0) continue;
+      for (let c = 0; c < 3; c++) {
+        full[c] += weight * pf[c];
+        lite[c] += weight * pl[c];
+      }
     }
-    if (!(lite[0] > 0 && lite[1] > 0 && lite[2] > 0 && full[0] > 0)) return ghost.faintColour;
+    if (!(lite[0] > 0 && lite[1] > 0 && lite[2] > 0)) return ghost.faintColour;
     return [full[0] / lite[0], full[1] / lite[1], full[2] / lite[2]];
   }
 
@@ -467,11 +489,13 @@ class GhostGrid {
           if (this.passes(a, 0)) this.foldedPeak = Math.max(this.foldedPeak, entrance * this.thr[a]);
           continue;
         }
-        const ratio = entrance / area;
-        e[a] += ratio;
-        e[b] += ratio;
-        e[c] += ratio;
-        e[d] += ratio;
+        // sensor area gathered per vertex; the irradiance is then the cells' entrance area over
+        // their sensor area together, so a nearly folded cell beside a vertex cannot blow its value up
+        // (an average of the cells' ratios did, and large triangles smeared it across the frame)
+        e[a] += area;
+        e[b] += area;
+        e[c] += area;
+        e[d] += area;
         counts[a]++;
         counts[b]++;
         counts[c]++;
@@ -479,7 +503,7 @@ class GhostGrid {
       }
     }
     for (let v = 0; v < side * side; v++) {
-      const value = counts[v] ? (e[v] / counts[v]) * this.thr[v] : 0;
+      const value = counts[v] ? ((counts[v] * entrance) / e[v]) * this.thr[v] : 0;
       e[v] = Number.isFinite(value) ? value : 0;
     }
   }
