@@ -17,7 +17,7 @@ export type GhostQuality = 'draft' | 'low' | 'medium' | 'high';
 export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number; faintGrid: number; faintWavelengths: number }>> = {
   draft: { grid: 12, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },
   low: { grid: 16, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },
-  medium: { grid: 24, wavelengths: 5, faintGrid: 12, faintWavelengths: 3 },
+  medium: { grid: 20, wavelengths: 5, faintGrid: 12, faintWavelengths: 3 },
   high: { grid: 48, wavelengths: 7, faintGrid: 48, faintWavelengths: 7 },
 };
 
