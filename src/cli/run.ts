@@ -39,7 +39,8 @@ import { Progress } from './progress.js';
 import { VERSION } from '../version.js';
 import { contactSheet } from '../review/sheet.js';
 import { findFfmpeg, movieKind, writeMovie } from '../review/movie.js';
-import { addPlate, checkPlateTemplate, openSource, readPlate, readSource, timecodeOf } from '../review/source.js';
+import { addPlate, checkPlateTemplate, compositeTemplate, openSource, readPlate, readSource, timecodeOf } from '../review/source.js';
+import { writeComposites } from '../review/composite.js';
 import { shotSummary } from './summary.js';
 
 export interface CliIO {
@@ -112,14 +113,13 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
     .addOption(new Option('--format <format>', "output format, instead of the shot's (an --out ending in .exr also picks exr)").choices(['png16', 'png8', 'exr']))
     .addOption(new Option('--alpha <mode>', "alpha, instead of the shot's: none (add), premultiplied, or emission (exr: over adds)").choices(['none', 'premultiplied', 'emission']))
     .option('--movie <file>', 'then encode a review movie with ffmpeg: .mov (ProRes 4444 with alpha) or .mp4 (H.264)')
-    .option('--over <plate>', 'composite the movie over this background plate sequence (added in linear light)')
+    .option('--over <plate>', 'then write review frames of the pass added over this background plate sequence (linear light; NAME.over.####.png), and make any --movie from them')
     .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
       // review options are checked before any work, so an overnight render does not fail at the end
-      if (opts.over && !opts.movie) throw new UsageError('--over: composites the review movie; give --movie FILE too');
       if (opts.movie) movieKind(opts.movie);
       const ffmpeg = opts.movie ? findFfmpeg() : undefined;
       checkPlateTemplate(opts.over);
-      if (opts.movie && opts.shard) throw new UsageError('--movie needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)');
+      if ((opts.movie || opts.over) && opts.shard) throw new UsageError(`${opts.movie ? '--movie' : '--over'} needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)`);
       const shot = withOutputOptions(loadShot(shotFile), opts);
       const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
       let template: string | undefined;
@@ -198,10 +198,18 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           if (opts.failOnFlash) setExit(ExitCode.flashes);
         }
       }
-      if (opts.movie && !result.interrupted && result.failed.length === 0) {
+      if ((opts.movie || opts.over) && !result.interrupted && result.failed.length === 0) {
         const templates = sequences.map((q) => writtenTemplate(q, template));
-        const movie = await writeMovie({ templates, frames: frameList(frames), rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect }, opts.movie, { over: opts.over, ffmpeg, signal: io.signal });
-        if (!opts.quiet) io.stderr(`movie: ${movie.file} (${movie.frames} frames, ${movie.kind === 'h264' ? 'H.264' : 'ProRes 4444 with alpha'}${opts.over ? ', over the plate' : ''})\n`);
+        const src = { templates, frames: frameList(frames), rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect };
+        if (opts.over) {
+          const review = compositeTemplate(template ?? shot.output.template);
+          const n = writeComposites(src, opts.over, review, io.signal);
+          if (!opts.quiet) io.stderr(`review frames: ${review} (${n} frames over the plate)\n`);
+        }
+        if (opts.movie) {
+          const movie = await writeMovie(src, opts.movie, { over: opts.over, ffmpeg, signal: io.signal });
+          if (!opts.quiet) io.stderr(`movie: ${movie.file} (${movie.frames} frames, ${movie.kind === 'h264' ? 'H.264' : 'ProRes 4444 with alpha'}${opts.over ? ', over the plate' : ''})\n`);
+        }
       }
     });
 

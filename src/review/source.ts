@@ -95,3 +95,11 @@ export function addPlate(pass: LinearFrame, plate: LinearFrame): LinearFrame {
   for (let i = 0; i < pass.rgb.length; i++) pass.rgb[i] += plate.rgb[i];
   return pass;
 }
+
+/** Where review composites of a sequence go: beside it, named NAME.over.####.png. */
+export function compositeTemplate(template: string): string {
+  const t = parseFrameTemplate(template);
+  if (typeof t === 'string') throw new Error(t);
+  const hashes = template.slice(t.prefix.length, template.length - t.suffix.length);
+  return `${t.prefix}over.${hashes}.png`;
+}

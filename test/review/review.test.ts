@@ -207,11 +207,31 @@ describe('review movies through ffmpeg', () => {
     }
   });
 
-  it('refuses a movie of another kind, --over without --movie, and --movie with --shard', async () => {
+  it('refuses a movie of another kind, and --movie or --over with --shard', async () => {
     const dir = tempDir();
     const f = shot(dir);
     expect((await cli(['render', f, '--movie', 'x.avi'])).stderr).toContain('--movie: the file must end in .mov (ProRes 4444 with alpha) or .mp4 (H.264 review), found "x.avi"');
-    expect((await cli(['render', f, '--over', 'p.####.png'])).code).toBe(ExitCode.usage);
     expect((await cli(['render', f, '--movie', 'x.mov', '--shard', '0/2'])).code).toBe(ExitCode.usage);
+    expect((await cli(['render', f, '--over', 'p.####.png', '--shard', '0/2'])).code).toBe(ExitCode.usage);
+  });
+
+  it('--over alone writes review frames: the pass plus the plate in linear light, then sRGB, beside the pass', async () => {
+    const dir = tempDir();
+    const f = shot(dir, { last: 3 });
+    mkdirSync(path.join(dir, 'plate'));
+    const grey = new FloatImage(64, 36);
+    for (let i = 0; i < grey.data.length; i += 4) grey.data.set([0.2158, 0.2158, 0.2158, 0], i); // sRGB code 128 (IEC 61966-2-1)
+    for (let k = 1; k <= 3; k++) writeFileSync(path.join(dir, 'plate', `p.${String(k).padStart(4, '0')}.png`), encodePng(grey, { bitDepth: 16, transfer: 'linear', alpha: 'none' }));
+    const r = await cli(['render', f, '--over', path.join(dir, 'plate', 'p.####.png')]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toContain('(3 frames over the plate)');
+    const png = decode(readFileSync(path.join(dir, 'out', 'f.over.0002.png')));
+    expect([png.width, png.height, png.depth, png.channels]).toEqual([64, 36, 8, 3]);
+    // far from the light the plate shows through (the glow adds a little); at the light, white
+    const corner = png.data[(35 * 64 + 63) * 3] as number;
+    expect(corner).toBeGreaterThanOrEqual(128);
+    expect(corner).toBeLessThanOrEqual(131);
+    const lightX = Math.round(4 + (56 * 1) / 2); // frame 2 of 3: halfway along the path
+    expect(png.data[(18 * 64 + lightX) * 3]).toBe(255);
   });
 });

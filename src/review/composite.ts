@@ -1,0 +1,24 @@
+// Review composites: the pass added over the background plate in linear light (Porter & Duff
+// "plus"), clipped to white and written with the sRGB curve as 8-bit PNGs, one per frame, each
+// written atomically (a temporary name, then renamed).
+
+import { writeFileAtomic } from '../io/atomic-write.js';
+import { expandFramePath } from '../io/frame-path.js';
+import { encodePng } from '../io/png.js';
+import { FloatImage } from '../raster/image.js';
+import { OutputError } from '../errors.js';
+import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
+
+export function writeComposites(src: SequenceSource, plate: string, template: string, signal?: AbortSignal): number {
+  let written = 0;
+  for (const f of src.frames) {
+    if (signal?.aborted) throw new OutputError(`${template}: interrupted after ${written} review frames`);
+    const frame = readSource(src, f);
+    addPlate(frame, readPlate(plate, f, frame.width, frame.height));
+    const img = new FloatImage(frame.width, frame.height);
+    for (let p = 0; p < frame.width * frame.height; p++) img.data.set([frame.rgb[p * 3], frame.rgb[p * 3 + 1], frame.rgb[p * 3 + 2], 0], p * 4);
+    writeFileAtomic(expandFramePath(template, f), encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+    written++;
+  }
+  return written;
+}
