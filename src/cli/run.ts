@@ -201,15 +201,13 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       if ((opts.movie || opts.over) && !result.interrupted && result.failed.length === 0) {
         const templates = sequences.map((q) => writtenTemplate(q, template));
         const src = { templates, frames: frameList(frames), rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect };
-        if (opts.over) {
-          const review = compositeTemplate(template ?? shot.output.template);
-          const n = writeComposites(src, opts.over, review, io.signal);
-          if (!opts.quiet) io.stderr(`review frames: ${review} (${n} frames over the plate)\n`);
-        }
+        // composites and movie in one pass over the frames
+        const review = opts.over ? compositeTemplate(template ?? shot.output.template) : undefined;
         if (opts.movie) {
-          const movie = await writeMovie(src, opts.movie, { over: opts.over, ffmpeg, signal: io.signal });
+          const movie = await writeMovie(src, opts.movie, { over: opts.over, composites: review, ffmpeg, signal: io.signal });
           if (!opts.quiet) io.stderr(`movie: ${movie.file} (${movie.frames} frames, ${movie.kind === 'h264' ? 'H.264' : 'ProRes 4444 with alpha'}${opts.over ? ', over the plate' : ''})\n`);
-        }
+        } else if (opts.over) writeComposites(src, opts.over, review!, io.signal);
+        if (review && !opts.quiet) io.stderr(`review frames: ${review} (${src.frames.length} frames over the plate)\n`);
       }
     });
 

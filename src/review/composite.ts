@@ -7,6 +7,7 @@ import { expandFramePath } from '../io/frame-path.js';
 import { encodePng } from '../io/png.js';
 import { FloatImage } from '../raster/image.js';
 import { OutputError } from '../errors.js';
+import type { LinearFrame } from '../io/read-frame.js';
 import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
 
 export function writeComposites(src: SequenceSource, plate: string, template: string, signal?: AbortSignal): number {
@@ -14,11 +15,15 @@ export function writeComposites(src: SequenceSource, plate: string, template: st
   for (const f of src.frames) {
     if (signal?.aborted) throw new OutputError(`${template}: interrupted after ${written} review frames`);
     const frame = readSource(src, f);
-    addPlate(frame, readPlate(plate, f, frame.width, frame.height));
-    const img = new FloatImage(frame.width, frame.height);
-    for (let p = 0; p < frame.width * frame.height; p++) img.data.set([frame.rgb[p * 3], frame.rgb[p * 3 + 1], frame.rgb[p * 3 + 2], 0], p * 4);
-    writeFileAtomic(expandFramePath(template, f), encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+    writeCompositeFrame(addPlate(frame, readPlate(plate, f, frame.width, frame.height)), expandFramePath(template, f));
     written++;
   }
   return written;
+}
+
+/** One composited frame (linear RGB, plate already added) as an 8-bit sRGB PNG, written atomically. */
+export function writeCompositeFrame(frame: LinearFrame, file: string): void {
+  const img = new FloatImage(frame.width, frame.height);
+  for (let p = 0; p < frame.width * frame.height; p++) img.data.set([frame.rgb[p * 3], frame.rgb[p * 3 + 1], frame.rgb[p * 3 + 2], 0], p * 4);
+  writeFileAtomic(file, encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
 }

@@ -4,7 +4,7 @@
 // from the linear passes (separate passes summed, the plate added in linear light first), are
 // converted to Y'CbCr with the Rec.709 matrix, and are tagged Rec.709 primaries with the sRGB
 // transfer. The ProRes alpha is straight (colour divided by alpha), the convention of QuickTime
-// alpha; the movie carries the shot's rate and start timecode. Written to a temporary name and
+// alpha (from memory); the movie carries the shot's rate and start timecode. Written to a temporary name and
 // renamed, so a failed encode never leaves a half movie under the asked name.
 
 import { spawn, spawnSync } from 'node:child_process';
@@ -14,6 +14,8 @@ import { OutputError, ToolMissingError, UsageError } from '../errors.js';
 import { passAlpha } from '../io/png.js';
 import { quantiser } from '../io/quantise.js';
 import { framesToTimecode } from '../timeline/timecode.js';
+import { expandFramePath } from '../io/frame-path.js';
+import { writeCompositeFrame } from './composite.js';
 import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
 
 export type MovieKind = 'prores4444' | 'h264';
@@ -89,8 +91,11 @@ export interface MovieResult {
   kind: MovieKind;
 }
 
-/** Encode the source (plus a plate) to `file` through ffmpeg. */
-export async function writeMovie(src: SequenceSource, file: string, opts: { over?: string; ffmpeg?: string; signal?: AbortSignal }): Promise<MovieResult> {
+/**
+ * Encode the source (plus a plate) to `file` through ffmpeg. With a plate and `composites`, each
+ * composited frame is also written there as a review PNG, in the same pass.
+ */
+export async function writeMovie(src: SequenceSource, file: string, opts: { over?: string; composites?: string; ffmpeg?: string; signal?: AbortSignal }): Promise<MovieResult> {
   const kind = movieKind(file);
   const ffmpeg = opts.ffmpeg ?? findFfmpeg();
   const target = path.resolve(file);
@@ -110,7 +115,10 @@ export async function writeMovie(src: SequenceSource, file: string, opts: { over
     for (const f of src.frames) {
       if (opts.signal?.aborted) throw new OutputError(`${file}: interrupted; no movie written`);
       const frame = f === src.frames[0] ? first : readSource(src, f);
-      if (opts.over) addPlate(frame, readPlate(opts.over, f, frame.width, frame.height));
+      if (opts.over) {
+        addPlate(frame, readPlate(opts.over, f, frame.width, frame.height));
+        if (opts.composites) writeCompositeFrame(frame, expandFramePath(opts.composites, f));
+      }
       if (child.exitCode !== null) break;
       await write(movieFrame(kind, frame.rgb, opts.over !== undefined));
     }

@@ -138,16 +138,21 @@ describe('reading OpenEXR files written by oiiotool', () => {
     expect(bad).toBe(0);
   });
 
-  it('places a data window inside a larger display window; outside it reads 0', () => {
+  /** A 20x10 Z image written by oiiotool with its data window moved and its display window set. */
+  const windowed = (origin: string, fullsize: string, compression: string) => {
     const dir = tempDir();
     const values = pattern(20, 10, 3);
     writePfm(path.join(dir, 'in.pfm'), 20, 10, values);
     const exr = path.join(dir, 'm.exr');
-    oiiotool([path.join(dir, 'in.pfm'), '--ch', 'Z=R', '-d', 'float', '--origin', '+5+3', '--fullsize', '40x30+0+0', '--compression', 'zip', '-o', exr]);
+    oiiotool([path.join(dir, 'in.pfm'), '--ch', 'Z=R', '-d', 'float', '--origin', origin, '--fullsize', fullsize, '--compression', compression, '-o', exr]);
     const img = decodeExr(readFileSync(exr));
+    return { img, z: img.channels.get('Z')!, values };
+  };
+
+  it('places a data window inside a larger display window; outside it reads 0', () => {
+    const { img, z, values } = windowed('+5+3', '40x30+0+0', 'zip');
     expect([img.width, img.height]).toEqual([40, 30]);
     expect(img.dataWindow).toEqual([5, 3, 24, 12]);
-    const z = img.channels.get('Z')!;
     expect(z[0]).toBe(0);
     expect(z[3 * 40 + 5]).toBe(values[0]);
     expect(z[12 * 40 + 24]).toBe(values[(9 * 20 + 19) * 3]);
@@ -155,14 +160,8 @@ describe('reading OpenEXR files written by oiiotool', () => {
   });
 
   it('crops a data window that reaches past the display window (overscan)', () => {
-    const dir = tempDir();
-    const values = pattern(20, 10, 4);
-    writePfm(path.join(dir, 'in.pfm'), 20, 10, values);
-    const exr = path.join(dir, 'm.exr');
-    oiiotool([path.join(dir, 'in.pfm'), '--ch', 'Z=R', '-d', 'float', '--origin', '-4-2', '--fullsize', '10x6+0+0', '--compression', 'zips', '-o', exr]);
-    const img = decodeExr(readFileSync(exr));
+    const { img, z, values } = windowed('-4-2', '10x6+0+0', 'zips');
     expect([img.width, img.height]).toEqual([10, 6]);
-    const z = img.channels.get('Z')!;
     // display (0, 0) is data pixel (4, 2); display (9, 5) is data pixel (13, 7)
     expect(z[0]).toBe(values[(2 * 20 + 4) * 3]);
     expect(z[5 * 10 + 9]).toBe(values[(7 * 20 + 13) * 3]);

@@ -174,6 +174,7 @@ describe('review movies through ffmpeg', () => {
     const r = await cli(['render', f, '--movie', path.join(dir, 'm.mp4'), '--over', path.join(dir, 'plate', 'p.####.png')]);
     expect(r.code, r.stderr).toBe(0);
     expect(r.stderr).toContain('(3 frames, H.264, over the plate)');
+    expect(existsSync(path.join(dir, 'out', 'f.over.0003.png'))).toBe(true); // review frames too, in the same pass
     // the far corner shows the plate: sRGB 128, within the H.264 coding error
     const y = spawnSync('ffmpeg', ['-v', 'error', '-i', path.join(dir, 'm.mp4'), '-frames:v', '1', '-vf', 'scale=in_color_matrix=bt709:in_range=tv', '-pix_fmt', 'rgb24', '-f', 'rawvideo', '-'], { maxBuffer: 1 << 20 });
     expect(y.status, String(y.stderr)).toBe(0);
