@@ -198,6 +198,42 @@ interface Box {
 
 const hit = new RayHit();
 
+/** Headroom on the mask limits along a row (coverage units; rounding is below 1e-12). */
+const MASK_SLACK = 1e-6;
+
+/** A pixel's mask: the smallest coverage of the triangle's planes and iris circles (0 when outside). */
+function maskAt(
+  ox: number,
+  oy: number,
+  polyPlanes: number,
+  p0: Float64Array,
+  pgx: Float64Array,
+  pgy: Float64Array,
+  pinv: Float64Array,
+  nc: number,
+  cu0: Float64Array,
+  cugx: Float64Array,
+  cugy: Float64Array,
+  cv0: Float64Array,
+  cvgx: Float64Array,
+  cvgy: Float64Array,
+  cw: Float64Array,
+): number {
+  let mask = 1;
+  for (let p = 0; p < polyPlanes; p++) {
+    const cov = 0.5 + (p0[p] + ox * pgx[p] + oy * pgy[p]) * pinv[p];
+    if (cov <= 0) return 0;
+    if (cov < mask) mask = cov;
+  }
+  for (let q = 0; q < nc; q++) {
+    const u = cu0[q] + ox * cugx[q] + oy * cugy[q];
+    const v = cv0[q] + ox * cvgx[q] + oy * cvgy[q];
+    const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / cw[q];
+    if (cov < mask) mask = cov;
+  }
+  return mask;
+}
+
 /** The traced grid of one ghost at one wavelength, and its rasterisation. */
 class GhostGrid {
   readonly n: number;
@@ -675,31 +711,99 @@ class GhostGrid {
         else if (slope < 0) hi = Math.min(hi, -rest / slope);
         else if (rest < 0) hi = lo - 1;
       }
-      const pxFrom = Math.max(minX, Math.ceil(lo + x0 - 0.5 - 1e-9));
-      const pxTo = Math.min(maxX, Math.floor(hi + x0 - 0.5 + 1e-9));
-      for (let px = pxFrom; px <= pxTo; px++) {
-        // inside the triangle by construction of the span (its barycentric weights are >= 0)
+      let pxFrom = Math.max(minX, Math.ceil(lo + x0 - 0.5 - 1e-9));
+      let pxTo = Math.min(maxX, Math.floor(hi + x0 - 0.5 + 1e-9));
+      if (pxFrom > pxTo) continue;
+      // Along the row every mask is known in closed form (the planes are affine in x, a circle's
+      // squared radius quadratic), so the span is cut to where each mask can be above 0, and split
+      // into edge stretches, where masks are evaluated per pixel, and an interior where every mask
+      // is at least 1 and only the irradiance is needed. The limits keep MASK_SLACK of headroom
+      // (far above rounding), so each pixel gets exactly the value the per-pixel test would give.
+      let inFrom = pxFrom;
+      let inTo = pxTo;
+      const bx = 0.5 - x0; // ox = px + bx
+      for (let p = 0; p < polyPlanes && pxFrom <= pxTo; p++) {
+        // coverage = a0 + slope * px
+        const slope = pgx[p] * pinv[p];
+        const a0 = 0.5 + (p0[p] + bx * pgx[p] + oy * pgy[p]) * pinv[p];
+        if (slope > 0) {
+          pxFrom = Math.max(pxFrom, Math.floor((-MASK_SLACK - a0) / slope) + 1);
+          inFrom = Math.max(inFrom, Math.ceil((1 + MASK_SLACK - a0) / slope));
+        } else if (slope < 0) {
+          pxTo = Math.min(pxTo, Math.ceil((-MASK_SLACK - a0) / slope) - 1);
+          inTo = Math.min(inTo, Math.floor((1 + MASK_SLACK - a0) / slope));
+        } else {
+          if (a0 <= -MASK_SLACK) pxTo = pxFrom - 1;
+          if (a0 < 1 + MASK_SLACK) inTo = inFrom - 1;
+        }
+      }
+      for (let q = 0; q < nc && pxFrom <= pxTo; q++) {
+        // r^2 = qa px^2 + 2 qb px + qc; coverage >= 1 where r <= 1 - cw/2, > 0 only where r < 1 + cw/2
+        const au = cu0[q] + bx * cugx[q] + oy * cugy[q];
+        const av = cv0[q] + bx * cvgx[q] + oy * cvgy[q];
+        const qa = cugx[q] * cugx[q] + cvgx[q] * cvgx[q];
+        const qb = au * cugx[q] + av * cvgx[q];
+        const qc = au * au + av * av;
+        const outer = 1 + 0.5 * cw[q] + MASK_SLACK;
+        const inner = 1 - 0.5 * cw[q] - MASK_SLACK;
+        if (qa < 1e-18) {
+          // (nearly) constant along the row: test it pixel by pixel
+          inTo = inFrom - 1;
+          continue;
+        }
+        const dOut = qb * qb - qa * (qc - outer * outer);
+        if (dOut <= 0) {
+          pxTo = pxFrom - 1;
+          break;
+        }
+        const sOut = Math.sqrt(dOut);
+        pxFrom = Math.max(pxFrom, Math.floor((-qb - sOut) / qa));
+        pxTo = Math.min(pxTo, Math.ceil((-qb + sOut) / qa));
+        const dIn = inner > 0 ? qb * qb - qa * (qc - inner * inner) : -1;
+        if (dIn <= 0) {
+          inTo = inFrom - 1;
+          continue;
+        }
+        const sIn = Math.sqrt(dIn);
+        inFrom = Math.max(inFrom, Math.ceil((-qb - sIn) / qa));
+        inTo = Math.min(inTo, Math.floor((-qb + sIn) / qa));
+      }
+      if (pxFrom > pxTo) continue;
+      if (inFrom < pxFrom) inFrom = pxFrom;
+      if (inTo > pxTo) inTo = pxTo;
+      if (inFrom > inTo) {
+        inFrom = pxTo + 1;
+        inTo = pxTo;
+      }
+      const row = py * w;
+      // the left edge stretch, the interior, the right edge stretch
+      for (let px = pxFrom; px < inFrom; px++) {
         const ox = px + 0.5 - x0;
-        let mask = 1;
-        for (let p = 0; p < polyPlanes; p++) {
-          const cov = 0.5 + (p0[p] + ox * pgx[p] + oy * pgy[p]) * pinv[p];
-          if (cov <= 0) {
-            mask = 0;
-            break;
-          }
-          if (cov < mask) mask = cov;
-        }
-        if (mask <= 0) continue;
-        for (let q = 0; q < nc; q++) {
-          const u = cu0[q] + ox * cugx[q] + oy * cugy[q];
-          const v = cv0[q] + ox * cvgx[q] + oy * cvgy[q];
-          const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / cw[q];
-          if (cov < mask) mask = cov;
-        }
+        const mask = maskAt(ox, oy, polyPlanes, p0, pgx, pgy, pinv, nc, cu0, cugx, cugy, cv0, cvgx, cvgy, cw);
         if (mask <= 0) continue;
         const e = (ea + ox * egx + oy * egy) * mask;
         if (e <= 0) continue;
-        const i = (py * w + px) * stride;
+        const i = (row + px) * stride;
+        d[i] += e * s0;
+        d[i + 1] += e * s1;
+        d[i + 2] += e * s2;
+      }
+      for (let px = inFrom; px <= inTo; px++) {
+        const ox = px + 0.5 - x0;
+        const e = ea + ox * egx + oy * egy;
+        if (e <= 0) continue;
+        const i = (row + px) * stride;
+        d[i] += e * s0;
+        d[i + 1] += e * s1;
+        d[i + 2] += e * s2;
+      }
+      for (let px = Math.max(pxFrom, inTo + 1); px <= pxTo; px++) {
+        const ox = px + 0.5 - x0;
+        const mask = maskAt(ox, oy, polyPlanes, p0, pgx, pgy, pinv, nc, cu0, cugx, cugy, cv0, cvgx, cvgy, cw);
+        if (mask <= 0) continue;
+        const e = (ea + ox * egx + oy * egy) * mask;
+        if (e <= 0) continue;
+        const i = (row + px) * stride;
         d[i] += e * s0;
         d[i + 1] += e * s1;
         d[i + 2] += e * s2;
