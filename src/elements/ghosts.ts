@@ -136,9 +136,12 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   const layers = layersFor(img.width, img.height);
   const centre = Math.floor(system.samples.length / 2);
   // a coarse grid finds each ghost's ray box; the fine grid traces and draws it
-  const coarseFull = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
-  const grid = new GhostGrid(system, system.grid, view, sx, sy, stopRadius, pxX, pxY, shape);
-  const faintGrid = system.faintGrid === system.grid ? grid : new GhostGrid(system, system.faintGrid, view, sx, sy, stopRadius, pxX, pxY, shape);
+  const coarse = new GhostGrid(system, Math.min(FIT_GRID, system.grid), view, sx, sy, stopRadius, pxX, pxY, shape);
+  const gridOf = (n: number) => (n === coarse.n ? coarse : new GhostGrid(system, n, view, sx, sy, stopRadius, pxX, pxY, shape));
+  const grid = gridOf(system.grid);
+  const faintGrid = system.faintGrid === system.grid ? grid : gridOf(system.faintGrid);
+  // the fitting trace is at this wavelength: drawn with the fitting grid, it needs no trace again
+  const fitNm = system.samples[centre].nm;
   for (let g = 0; g < system.kept; g++) {
     const ghost = system.ranked[g];
     // paraxial peak estimate: skip what cannot reach a visible value
@@ -148,7 +151,6 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
       continue;
     }
     const faintPeak = settings.faintPeak ?? FAINT_PEAK;
-    const coarse = coarseFull;
     const box = coarse.fitBox(ghost, ghost.plans[centre]);
     if (!box) {
       if (stats) stats.skipped++;
@@ -168,10 +170,13 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
     const plans = faint ? ghost.faintPlans : ghost.plans;
     const fine = faint ? faintGrid : grid;
     const tone = faint ? fine.colourMatch(ghost, box, system) : ONE;
-    for (let w = 0; w < samples.length; w++) {
+    // drawn with the fitting grid, the fitting wavelength goes first, straight from the fit's trace
+    const reuse = fine === coarse && coarse.lastTraced === box ? samples.findIndex((q) => q.nm === fitNm) : -1;
+    for (let step = 0; step < samples.length; step++) {
+      const w = reuse < 0 ? step : step === 0 ? reuse : step <= reuse ? step - 1 : step;
       const weight = samples[w].rgb;
       const k = settings.gain / view.pixelAspect;
-      fine.trace(plans[w], box);
+      if (step > 0 || reuse < 0) fine.trace(plans[w], box);
       fine.draw(img, layer, [e0[0] * weight[0] * tone[0] * k, e0[1] * weight[1] * tone[1] * k, e0[2] * weight[2] * tone[2] * k]);
     }
     if (stats) stats.drawn++;
@@ -317,8 +322,10 @@ class GhostGrid {
     }
     if (box.x1 <= box.x0 || box.y1 <= box.y0) box = { x0: -front, y0: -front, x1: front, y1: front };
     let searched = false;
+    let traced: Box | undefined;
     for (let round = 0; round < 4; round++) {
       this.trace(plan, box);
+      traced = box;
       const n = this.n;
       const s = this.side;
       let any = false;
@@ -351,8 +358,12 @@ class GhostGrid {
       if (next.x0 === box.x0 && next.x1 === box.x1 && next.y0 === box.y0 && next.y1 === box.y1) break;
       box = next;
     }
+    // the last growth step is traced too: the shrinking below reads the grid of `box`
+    if (traced !== box) this.trace(plan, box);
     // shrink onto the rays that pass (a thin cat's eye would otherwise get only a few cells),
-    // keeping a cell and a half of margin
+    // keeping a cell and a half of margin; each shrunk box is traced with 4% more on every side
+    // for the other wavelengths' chromatic shift, so the last one traced is the box returned
+    let shrunk = false;
     for (let round = 0; round < 2; round++) {
       const n = this.n;
       const s = this.side;
@@ -375,14 +386,23 @@ class GhostGrid {
       const tight: Box = { x0: box.x0 + (i0 - 1.5) * cw, x1: box.x0 + (i1 + 1.5) * cw, y0: box.y0 + (j0 - 1.5) * ch, y1: box.y0 + (j1 + 1.5) * ch };
       const clipped: Box = { x0: Math.max(box.x0, tight.x0), x1: Math.min(box.x1, tight.x1), y0: Math.max(box.y0, tight.y0), y1: Math.min(box.y1, tight.y1) };
       if ((clipped.x1 - clipped.x0) * (clipped.y1 - clipped.y0) > 0.6 * (box.x1 - box.x0) * (box.y1 - box.y0)) break;
-      box = clipped;
+      box = this.chromaticMargin(clipped, front);
+      shrunk = true;
       this.trace(plan, box);
     }
-    // a little extra for the other wavelengths' chromatic shift
+    // not shrunk: the margin is added after the last trace (the caller traces it again)
+    return shrunk ? box : this.chromaticMargin(box, front);
+  }
+
+  /** The box with 4% more on every side (within the front) for the other wavelengths' chromatic shift. */
+  private chromaticMargin(box: Box, front: number): Box {
     const mx = 0.04 * (box.x1 - box.x0);
     const my = 0.04 * (box.y1 - box.y0);
     return { x0: Math.max(-front, box.x0 - mx), x1: Math.min(front, box.x1 + mx), y0: Math.max(-front, box.y0 - my), y1: Math.min(front, box.y1 + my) };
   }
+
+  /** The box of the last trace (the grid holds its rays). */
+  lastTraced: Box | undefined;
 
   /**
    * RGB factors that give a faint ghost, drawn with the lighter wavelength set, the colour the full
@@ -462,6 +482,7 @@ class GhostGrid {
   trace(plan: PathPlan, box: Box): void {
     const { n, side, dx, dy, dz, launch, view } = this;
     plan.stopRadiusMm = this.stopRadius;
+    this.lastTraced = box;
     const cw = (box.x1 - box.x0) / n;
     const ch = (box.y1 - box.y0) / n;
     for (let j = 0; j <= n; j++) {
