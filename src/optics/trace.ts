@@ -150,9 +150,11 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
     const t = (plan.hoodZ - pz) / dz;
     if (t >= 0) vig2 = ((px + t * dx) ** 2 + (py + t * dy) ** 2) / (plan.hoodRadius * plan.hoodRadius);
   }
-  for (let e = 0; e < plan.n; e++) {
-    const zv = plan.z[e];
-    const r = plan.radius[e];
+  const { z: zs, radius: radii, invRadius, stop, invSemi2, reflect, reflectTable, eta: etas, nIn, nOut, transmit } = plan;
+  const events = plan.n;
+  for (let e = 0; e < events; e++) {
+    const zv = zs[e];
+    const r = radii[e];
     // intersection with the surface
     let t: number;
     let nx = 0;
@@ -167,7 +169,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       const b = px * dx + py * dy + ocz * dz;
       const c = px * px + py * py + ocz * ocz - r * r;
       let disc = b * b - c;
-      const ir = plan.invRadius[e];
+      const ir = invRadius[e];
       const slack = disc * ir * ir;
       if (slack < margin) margin = slack;
       if (disc < 0) disc = 0; // continue at the tangent point; the margin says it missed
@@ -191,7 +193,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       pz += t * dz;
     }
     if (points) points.push(pz, py);
-    if (plan.stop[e]) {
+    if (stop[e]) {
       if (out.stopCount < 3) {
         out.stopU[out.stopCount] = px / plan.stopRadiusMm;
         out.stopV[out.stopCount] = py / plan.stopRadiusMm;
@@ -200,7 +202,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       continue;
     }
     // the squared ratio here (no square root per surface); the root is taken once at the end
-    const v2 = (px * px + py * py) * plan.invSemi2[e];
+    const v2 = (px * px + py * py) * invSemi2[e];
     if (v2 > vig2) vig2 = v2;
     // orient the normal against the ray
     let cosi = -(nx * dx + ny * dy + nz * dz);
@@ -210,13 +212,13 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       nz = -nz;
       cosi = -cosi;
     }
-    if (plan.reflect[e]) {
-      throughput *= lookupReflect(plan.reflectTable[e]!, cosi);
+    if (reflect[e]) {
+      throughput *= lookupReflect(reflectTable[e]!, cosi);
       dx += 2 * cosi * nx;
       dy += 2 * cosi * ny;
       dz += 2 * cosi * nz;
     } else {
-      const eta = plan.eta[e];
+      const eta = etas[e];
       let k = 1 - eta * eta * (1 - cosi * cosi);
       if (k < margin) margin = k;
       if (k < 0) k = 0; // total internal reflection: continue at grazing; the margin says it is lost
@@ -226,8 +228,8 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       dy = eta * dy + f * ny;
       dz = eta * dz + f * nz;
       // bare Fresnel transmission at this angle (Smith eq. 11.1), times the coating's gain
-      const n1 = plan.nIn[e];
-      const n2 = plan.nOut[e];
+      const n1 = nIn[e];
+      const n2 = nOut[e];
       // at grazing incidence (and past total internal reflection, where the ray goes on at grazing)
       // nothing is transmitted; the formulas would divide 0 by 0 there
       const ds = n1 * cosi + n2 * cost;
@@ -235,7 +237,7 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       if (ds > 0 && dp > 0) {
         const rs = (n1 * cosi - n2 * cost) / ds;
         const rp = (n2 * cosi - n1 * cost) / dp;
-        throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * plan.transmit[e];
+        throughput *= (1 - 0.5 * (rs * rs + rp * rp)) * transmit[e];
       } else throughput = 0;
     }
   }
