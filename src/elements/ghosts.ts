@@ -718,20 +718,29 @@ class GhostGrid {
     const d = full ? img.data : layer.data;
     const stride = full ? 4 : 3;
     const w = full ? img.width : layer.w;
+    // the three barycentric constraints' slopes along a row (see the span below)
+    const sl0 = ex1;
+    const sl1 = -ey1;
+    const sl2 = -(ex1 - ey1);
     for (let py = minY; py <= maxY; py++) {
       const oy = py + 0.5 - y0;
       // the row's span inside the triangle: barycentric weights wb = ox ex1 - oy ey2 and
-      // wc = oy ex2 - ox ey1 are affine in ox; solve wb >= 0, wc >= 0, wb + wc <= 1 for ox
+      // wc = oy ex2 - ox ey1 are affine in ox; solve wb >= 0, wc >= 0, wb + wc <= 1 for ox:
+      // each weight is slope * ox + rest >= 0, a lower or an upper bound on ox
       let lo = minX + 0.5 - x0;
       let hi = maxX + 0.5 - x0;
-      // each weight is slope * ox + rest >= 0: a lower or an upper bound on ox
-      for (let k = 0; k < 3; k++) {
-        const slope = k === 0 ? ex1 : k === 1 ? -ey1 : -(ex1 - ey1);
-        const rest = k === 0 ? -oy * ey2 : k === 1 ? oy * ex2 : 1 - oy * (ex2 - ey2);
-        if (slope > 0) lo = Math.max(lo, -rest / slope);
-        else if (slope < 0) hi = Math.min(hi, -rest / slope);
-        else if (rest < 0) hi = lo - 1;
-      }
+      const r0 = -oy * ey2;
+      const r1 = oy * ex2;
+      const r2 = 1 - oy * (ex2 - ey2);
+      if (sl0 > 0) lo = Math.max(lo, -r0 / sl0);
+      else if (sl0 < 0) hi = Math.min(hi, -r0 / sl0);
+      else if (r0 < 0) continue;
+      if (sl1 > 0) lo = Math.max(lo, -r1 / sl1);
+      else if (sl1 < 0) hi = Math.min(hi, -r1 / sl1);
+      else if (r1 < 0) continue;
+      if (sl2 > 0) lo = Math.max(lo, -r2 / sl2);
+      else if (sl2 < 0) hi = Math.min(hi, -r2 / sl2);
+      else if (r2 < 0) continue;
       let pxFrom = Math.max(minX, Math.ceil(lo + x0 - 0.5 - 1e-9));
       let pxTo = Math.min(maxX, Math.floor(hi + x0 - 0.5 + 1e-9));
       if (pxFrom > pxTo) continue;
