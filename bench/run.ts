@@ -127,6 +127,33 @@ for (const jobs of [1, 2]) {
 rows.push([`sequence 1920x1080, double-gauss-50 + glow, ${seqFrames} frames, --jobs 1`, `${fps[1].toFixed(2)} fps (second half ${steady[1].toFixed(2)} fps)`]);
 rows.push([`sequence 1920x1080, same, --jobs 2`, `${fps[2].toFixed(2)} fps (second half ${steady[2].toFixed(2)} fps)`]);
 rows.push(['ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)', `${(fps[2] / fps[1]).toFixed(2)} (second half ${(steady[2] / steady[1]).toFixed(2)})`]);
+// what the machine allows: one full-frame pass (read-modify-write of a 1920x1080 RGBA float frame,
+// 33 MB, like the glow or the veil) timed on 1 thread and on 2 threads at once. A rendered frame
+// makes several such passes, so their slowdown bounds the ratio above from below the core count.
+{
+  const code = `const { parentPort } = require('node:worker_threads');
+    const a = new Float32Array(1920 * 1080 * 4);
+    for (let i = 0; i < a.length; i++) a[i] += 1; // fault the pages in
+    const t = performance.now();
+    for (let r = 0; r < 16; r++) for (let i = 0; i < a.length; i++) a[i] += 0.5;
+    parentPort.postMessage(performance.now() - t);`;
+  const pass = async (n: number) => {
+    const { Worker } = await import('node:worker_threads');
+    const ms = await Promise.all(
+      Array.from({ length: n }, () => new Promise<number>((resolve) => {
+        const w = new Worker(code, { eval: true });
+        w.once('message', (v: number) => {
+          resolve(v);
+          void w.terminate();
+        });
+      })),
+    );
+    return ms.reduce((a, b) => a + b, 0) / n / 16;
+  };
+  const one = await pass(1);
+  const two = await pass(2);
+  rows.push(['one full-frame pass (33 MB read-modify-write), 1 thread vs 2 at once', `${ms(one)} vs ${ms(two)} (x${(two / one).toFixed(2)}: memory bandwidth shared by the cores)`]);
+}
 rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.map((v) => `${v.toFixed(0)} ms`).join(', ')]);
 
 // --- peak memory (RSS, the whole process with its worker threads) at 3840x2160, 2 workers

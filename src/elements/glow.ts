@@ -34,9 +34,17 @@ export function moffatEnclosed(radius: number, sizePx: number, falloff: number):
 /** Sub-samples per pixel side where the profile curves fast (near its centre). */
 const NEAR_SAMPLES = 4;
 
-export function addGlow(img: FloatImage, g: GlowSource, pixelAspect: number): void {
+/**
+ * Add the glow to the image; with `overwrite`, the colour channels are set instead (and alpha
+ * cleared): a frame whose first full-frame pass is the glow is then not cleared beforehand, one
+ * trip through memory fewer (which is what limits two workers on a small machine).
+ */
+export function addGlow(img: FloatImage, g: GlowSource, pixelAspect: number, overwrite = false): void {
   const { xPx, yPx, sizePx, falloff, energy } = g;
-  if (energy[0] === 0 && energy[1] === 0 && energy[2] === 0) return;
+  if (energy[0] === 0 && energy[1] === 0 && energy[2] === 0) {
+    if (overwrite) img.data.fill(0);
+    return;
+  }
   const b = falloff / 2;
   const s2 = sizePx * sizePx;
   const norm = ((b - 1) / (Math.PI * s2)) * pixelAspect; // x pixel area in display units
@@ -73,9 +81,16 @@ export function addGlow(img: FloatImage, g: GlowSource, pixelAspect: number): vo
         // exp(-b log(.)) runs about twice as fast as Math.pow in V8 here
         k = Math.exp(-b * Math.log(1 + d2 * invS2));
       }
-      d[i] += er * k;
-      d[i + 1] += eg * k;
-      d[i + 2] += eb * k;
+      if (overwrite) {
+        d[i] = er * k;
+        d[i + 1] = eg * k;
+        d[i + 2] = eb * k;
+        d[i + 3] = 0;
+      } else {
+        d[i] += er * k;
+        d[i + 1] += eg * k;
+        d[i + 2] += eb * k;
+      }
     }
   }
 }

@@ -102,12 +102,20 @@ export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: num
 export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStats, mattes: MatteProvider = matteProvider(shot), target?: FloatImage): FloatImage {
   const { widthPx, heightPx, pixelAspect, opticalCentre } = shot.frame;
   let img: FloatImage;
+  // a reused target is cleared by the first glow drawn (which overwrites), or else before the
+  // first other element; a fresh image is clear already
+  let clear: boolean;
   if (target && target.width === widthPx && target.height === heightPx) {
     img = target;
-    img.data.fill(0);
+    clear = false;
   } else {
     img = new FloatImage(widthPx, heightPx);
+    clear = true;
   }
+  const ensureClear = () => {
+    if (!clear) img.data.fill(0);
+    clear = true;
+  };
   const assets = shotAssets(shot);
   const times = shutterTimes(shot.shutter, frame, shot.seed);
   const share = 1 / times.length;
@@ -134,15 +142,21 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       const disk = { xPx: s.xPx, yPx: s.yPx, radiusPx: s.radiusPx, radiance };
       // the disk itself is hidden pixel by pixel where the mattes cover it
       const clearAt = lookups.length ? (x: number, y: number) => lookups.reduce((c, f) => c * (1 - f(x, y)), 1) : undefined;
-      if (gCore > 0) addDisk(img, { ...disk, radiance: [radiance[0] * gCore, radiance[1] * gCore, radiance[2] * gCore] }, pixelAspect, clearAt);
-      if (visibility <= 0) continue;
+      // the glow first (it may clear the frame as it goes), then the disk over it
       const flux = diskFlux(disk).map((c) => c * visibility) as [number, number, number];
       const f = shot.glow.fraction * gGlow;
-      if (f > 0) addGlow(
-        img,
-        { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: shot.glow.sizePx, falloff: shot.glow.falloff },
-        pixelAspect,
-      );
+      if (visibility > 0 && f > 0) {
+        addGlow(
+          img,
+          { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: shot.glow.sizePx, falloff: shot.glow.falloff },
+          pixelAspect,
+          !clear,
+        );
+        clear = true;
+      }
+      ensureClear();
+      if (gCore > 0) addDisk(img, { ...disk, radiance: [radiance[0] * gCore, radiance[1] * gCore, radiance[2] * gCore] }, pixelAspect, clearAt);
+      if (visibility <= 0) continue;
       if (assets.lens && gGhosts > 0) {
         addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain * gGhosts, quality: shot.ghosts.quality }, stats);
       }
@@ -159,7 +173,9 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (assets.dust && gDust > 0) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, shot.dust.fraction * gDust, shot.dust.reachPx);
       for (let c = 0; c < 3; c++) veil[c] += flux[c] * shot.veil.fraction * gVeil;
     }
+    ensureClear();
     if (veil[0] > 0 || veil[1] > 0 || veil[2] > 0) addVeil(img, veil as [number, number, number], pixelAspect);
   }
+  ensureClear();
   return img;
 }
