@@ -2,6 +2,9 @@
 // light at several positions, drawn at `medium` with every ghost in full (faintPeak 0), as shipped,
 // and at `high`; differences in 8-bit sRGB codes over black (IEC 61966-2-1), the strictest view.
 // Run: `npx tsc -p . && node dist/tools/ghost-lod-check.js` (about a minute). DEVELOPERS.md quotes it.
+// With `--reference`, `medium` and `high` are also compared with a 128x128-ray grid at 7 wavelengths
+// (every ghost in full; converged to about 0.3% in a ghost's energy), at two of the positions: a
+// few minutes. That is the check for changes to how ghosts are fitted or drawn.
 
 import { readFileSync } from 'node:fs';
 import { addGhosts, type GhostView } from '../src/elements/ghosts.js';
@@ -39,6 +42,19 @@ function compare(a: Uint8Array, b: Uint8Array): string {
   d.sort();
   const pct = (p: number) => d[Math.floor(p * (d.length - 1))];
   return `rms ${Math.sqrt(s2 / a.length).toFixed(2)}, p99.9 ${pct(0.999)}, max ${d[d.length - 1]}`;
+}
+
+if (process.argv.includes('--reference')) {
+  const reference = prepareLens(model!, 'high', 1e-6);
+  reference.grid = 128;
+  reference.faintGrid = 128;
+  for (const [x, y] of [[960, 540], [1400, 300]]) {
+    const img = new FloatImage(1920, 1080);
+    addGhosts(img, reference, view, { xPx: x, yPx: y, flux: [flux, flux, flux] }, { fNumber: 4, gain: 1, quality: 'high' });
+    const ref = codes(img);
+    console.log(`light (${x}, ${y}) against the 128-ray reference: medium ${compare(draw(x, y, 'medium'), ref)}; high ${compare(draw(x, y, 'high'), ref)}`);
+  }
+  process.exit(0);
 }
 
 for (const [x, y] of [[1400, 300], [200, 900], [1900, 100], [960, 540], [2100, 500]]) {

@@ -206,38 +206,6 @@ const hit = new RayHit();
 /** Headroom on the mask limits along a row (coverage units; rounding is below 1e-12). */
 const MASK_SLACK = 1e-6;
 
-/** A pixel's mask: the smallest coverage of the triangle's planes and iris circles (0 when outside). */
-function maskAt(
-  ox: number,
-  oy: number,
-  polyPlanes: number,
-  p0: Float64Array,
-  pgx: Float64Array,
-  pgy: Float64Array,
-  pinv: Float64Array,
-  nc: number,
-  cu0: Float64Array,
-  cugx: Float64Array,
-  cugy: Float64Array,
-  cv0: Float64Array,
-  cvgx: Float64Array,
-  cvgy: Float64Array,
-  cw: Float64Array,
-): number {
-  let mask = 1;
-  for (let p = 0; p < polyPlanes; p++) {
-    const cov = 0.5 + (p0[p] + ox * pgx[p] + oy * pgy[p]) * pinv[p];
-    if (cov <= 0) return 0;
-    if (cov < mask) mask = cov;
-  }
-  for (let q = 0; q < nc; q++) {
-    const u = cu0[q] + ox * cugx[q] + oy * cugy[q];
-    const v = cv0[q] + ox * cvgx[q] + oy * cvgy[q];
-    const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / cw[q];
-    if (cov < mask) mask = cov;
-  }
-  return mask;
-}
 
 /** The traced grid of one ghost at one wavelength, and its rasterisation. */
 class GhostGrid {
@@ -806,18 +774,8 @@ class GhostGrid {
         inTo = pxTo;
       }
       const row = py * w;
-      // the left edge stretch, the interior, the right edge stretch
-      for (let px = pxFrom; px < inFrom; px++) {
-        const ox = px + 0.5 - x0;
-        const mask = maskAt(ox, oy, polyPlanes, p0, pgx, pgy, pinv, nc, cu0, cugx, cugy, cv0, cvgx, cvgy, cw);
-        if (mask <= 0) continue;
-        const e = (ea + ox * egx + oy * egy) * mask;
-        if (e <= 0) continue;
-        const i = (row + px) * stride;
-        d[i] += e * s0;
-        d[i + 1] += e * s1;
-        d[i + 2] += e * s2;
-      }
+      // the interior, then the left and the right edge stretches (one loop body for both, with
+      // the mask inline: a helper returning a double allocates a number box per call)
       for (let px = inFrom; px <= inTo; px++) {
         const ox = px + 0.5 - x0;
         const e = ea + ox * egx + oy * egy;
@@ -827,16 +785,31 @@ class GhostGrid {
         d[i + 1] += e * s1;
         d[i + 2] += e * s2;
       }
-      for (let px = Math.max(pxFrom, inTo + 1); px <= pxTo; px++) {
-        const ox = px + 0.5 - x0;
-        const mask = maskAt(ox, oy, polyPlanes, p0, pgx, pgy, pinv, nc, cu0, cugx, cugy, cv0, cvgx, cvgy, cw);
-        if (mask <= 0) continue;
-        const e = (ea + ox * egx + oy * egy) * mask;
-        if (e <= 0) continue;
-        const i = (row + px) * stride;
-        d[i] += e * s0;
-        d[i + 1] += e * s1;
-        d[i + 2] += e * s2;
+      for (let side = 0; side < 2; side++) {
+        const from = side === 0 ? pxFrom : Math.max(pxFrom, inTo + 1);
+        const to = side === 0 ? inFrom - 1 : pxTo;
+        for (let px = from; px <= to; px++) {
+          const ox = px + 0.5 - x0;
+          let mask = 1;
+          for (let p = 0; p < polyPlanes; p++) {
+            const cov = 0.5 + (p0[p] + ox * pgx[p] + oy * pgy[p]) * pinv[p];
+            if (cov < mask) mask = cov;
+            if (mask <= 0) break;
+          }
+          for (let q = 0; q < nc && mask > 0; q++) {
+            const u = cu0[q] + ox * cugx[q] + oy * cugy[q];
+            const v = cv0[q] + ox * cvgx[q] + oy * cvgy[q];
+            const cov = 0.5 + (1 - Math.sqrt(u * u + v * v)) / cw[q];
+            if (cov < mask) mask = cov;
+          }
+          if (mask <= 0) continue;
+          const e = (ea + ox * egx + oy * egy) * mask;
+          if (e <= 0) continue;
+          const i = (row + px) * stride;
+          d[i] += e * s0;
+          d[i + 1] += e * s1;
+          d[i + 2] += e * s2;
+        }
       }
     }
   }

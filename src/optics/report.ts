@@ -5,7 +5,7 @@ import { FloatImage } from '../raster/image.js';
 import { drawLine, drawPolyline, fill, type Rgb } from '../raster/draw.js';
 import { prepareLens, type LensSystem } from './ghost-system.js';
 import { ghostPath, vertexZ, type LensModel } from './lens.js';
-import { RayHit, planPath, traceRay } from './trace.js';
+import { RayHit, planPath, tracePoints } from './trace.js';
 
 export interface GhostRow {
   /** 1-based surface numbers, front to back: reflected first at `first`, then at `second` */
@@ -142,9 +142,9 @@ export function lensPlot(lens: LensModel, system: LensSystem, widthPx = 1400, he
     const ep = system.focalLengthMm / (2 * lens.fNumberMin);
     for (let t = -1; t <= 1.0001; t += 0.25) {
       const y0 = t * ep * 0.95;
-      const pts: number[] = [];
       const launch = 5;
-      if (!traceRay(plan, 0, y0 - launch * slope, -launch, 0, slope * norm, norm, hit, pts) || hit.vignette > 1) continue;
+      const pts = tracePoints(plan, 0, y0 - launch * slope, -launch, 0, slope * norm, norm, hit);
+      if (pts.length === 0 || hit.vignette > 1) continue;
       const xy: number[] = [X(-launch), Y(y0 - launch * slope)];
       for (let q = 0; q < pts.length; q += 2) xy.push(X(pts[q]), Y(pts[q + 1]));
       drawPolyline(img, xy, 1.2, RAY);

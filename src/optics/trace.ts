@@ -124,6 +124,12 @@ export class RayHit {
   throughput = 1;
   /** smallest geometric slack met (sphere discriminant / r^2, 1 - sin^2 of refraction); < 0 = lost */
   margin = 1;
+  /** how many of the path's surfaces it met (all, unless lost running parallel to a plane) */
+  met = 0;
+  /** where it met the path's last surface (z, y for a plot) */
+  px = 0;
+  py = 0;
+  pz = 0;
   /** direction cosines when it reached the sensor */
   dx = 0;
   dy = 0;
@@ -133,12 +139,24 @@ export class RayHit {
 /**
  * Trace a ray from (ox, oy, oz) along the unit vector (dx, dy, dz) through the planned path to the
  * sensor plane. Returns false if it is lost.
+ *
+ * Written for V8's optimiser: every double stays unboxed in the loop. Three patterns here once made
+ * it box them (2.7 kB of garbage a ray, and more than a third of the time): a step variable set
+ * to 0 on one branch and tested after the branches, an optional `points` array pushed to in the
+ * loop (even when absent), and the direction parameters reassigned in the loop. The path's points
+ * for a plot come from tracePoints instead.
  */
-export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, out: RayHit, points?: number[]): boolean {
-  let px = ox;
-  let py = oy;
-  let pz = oz;
+export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx0: number, dy0: number, dz0: number, out: RayHit): boolean {
+  // the unary plus makes these plain doubles for the optimiser; a parameter reassigned in the loop
+  // was kept as a tagged value instead, and every new direction was boxed
+  let px = +ox;
+  let py = +oy;
+  let pz = +oz;
+  let dx = +dx0;
+  let dy = +dy0;
+  let dz = +dz0;
   out.ok = false;
+  out.met = 0;
   out.stopCount = 0;
   out.vignette = 0;
   // kept in locals while tracing, stored at the end
@@ -155,14 +173,17 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   for (let e = 0; e < events; e++) {
     const zv = zs[e];
     const r = radii[e];
-    // intersection with the surface
-    let t: number;
+    // intersection with the surface; each branch moves the ray there itself (a step variable
+    // shared by both, 0 on one branch, made V8 box every double in the loop: 2.7 kB of garbage a ray)
     let nx = 0;
     let ny = 0;
     let nz = -1;
     if (r === 0) {
       if (Math.abs(dz) < 1e-12) return false;
-      t = (zv - pz) / dz;
+      const t = (zv - pz) / dz;
+      px += t * dx;
+      py += t * dy;
+      pz += t * dz;
     } else {
       const cz = zv + r;
       const ocz = pz - cz;
@@ -178,21 +199,14 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       const t1 = -b - sq;
       const t2 = -b + sq;
       const z1 = pz + t1 * dz - cz;
-      t = z1 * -r > 0 ? t1 : t2;
+      const t = z1 * -r > 0 ? t1 : t2;
       px += t * dx;
       py += t * dy;
       pz += t * dz;
       nx = px * ir;
       ny = py * ir;
       nz = (pz - cz) * ir;
-      t = 0;
     }
-    if (t !== 0) {
-      px += t * dx;
-      py += t * dy;
-      pz += t * dz;
-    }
-    if (points) points.push(pz, py);
     if (stop[e]) {
       if (out.stopCount < 3) {
         out.stopU[out.stopCount] = px / plan.stopRadiusMm;
@@ -241,6 +255,10 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
       } else throughput = 0;
     }
   }
+  out.met = events;
+  out.px = px;
+  out.py = py;
+  out.pz = pz;
   out.vignette = Math.sqrt(vig2);
   out.margin = margin;
   // a ray continued past a miss or total internal reflection (margin < 0) can meet later surfaces
@@ -250,10 +268,27 @@ export function traceRay(plan: PathPlan, ox: number, oy: number, oz: number, dx:
   const t = (plan.sensorZ - pz) / dz;
   out.x = px + t * dx;
   out.y = py + t * dy;
-  if (points) points.push(plan.sensorZ, out.y);
   out.dx = dx;
   out.dy = dy;
   out.dz = dz;
   out.ok = true;
   return true;
+}
+
+/**
+ * The (z, y) points where a ray meets each surface of the path and then the sensor, for drawing
+ * (each prefix of the path traced again: cheap for one ray, and it keeps the tracer lean).
+ * Empty when the ray is lost.
+ */
+export function tracePoints(plan: PathPlan, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, out: RayHit): number[] {
+  const pts: number[] = [];
+  for (let k = 1; k <= plan.n; k++) {
+    // a prefix ending after a reflection heads away from the sensor: only the surfaces count here
+    traceRay({ ...plan, n: k }, ox, oy, oz, dx, dy, dz, out);
+    if (out.met !== k) return [];
+    pts.push(out.pz, out.py);
+  }
+  if (!traceRay(plan, ox, oy, oz, dx, dy, dz, out)) return [];
+  pts.push(plan.sensorZ, out.y);
+  return pts;
 }
