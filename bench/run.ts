@@ -152,7 +152,7 @@ rows.push(['ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)', `${(fps[2] / fps
   };
   const one = await pass(1);
   const two = await pass(2);
-  rows.push(['one full-frame pass (33 MB read-modify-write), 1 thread vs 2 at once', `${ms(one)} vs ${ms(two)} (x${(two / one).toFixed(2)}: memory bandwidth shared by the cores)`]);
+  rows.push(['one full-frame pass (33 MB read-modify-write), 1 thread vs 2 at once', `${ms(one)} vs ${ms(two)} (x${(two / one).toFixed(2)} with two at once)`]);
 }
 rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.map((v) => `${v.toFixed(0)} ms`).join(', ')]);
 
