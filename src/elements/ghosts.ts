@@ -774,8 +774,7 @@ class GhostGrid {
         inTo = pxTo;
       }
       const row = py * w;
-      // the interior, then the left and the right edge stretches (one loop body for both, with
-      // the mask inline: a helper returning a double allocates a number box per call)
+      // the interior, then the left and the right edge stretches (one loop body for both)
       for (let px = inFrom; px <= inTo; px++) {
         const ox = px + 0.5 - x0;
         const e = ea + ox * egx + oy * egy;

@@ -37,7 +37,7 @@ const NEAR_SAMPLES = 4;
 /**
  * Add the glow to the image; with `overwrite`, the colour channels are set instead (and alpha
  * cleared): a frame whose first full-frame pass is the glow is then not cleared beforehand, one
- * trip through memory fewer (which is what limits two workers on a small machine).
+ * trip through the frame's memory fewer.
  */
 export function addGlow(img: FloatImage, g: GlowSource, pixelAspect: number, overwrite = false): void {
   const { xPx, yPx, sizePx, falloff, energy } = g;
