@@ -290,10 +290,8 @@ class GhostGrid {
     }
     if (box.x1 <= box.x0 || box.y1 <= box.y0) box = { x0: -front, y0: -front, x1: front, y1: front };
     let searched = false;
-    let traced: Box | undefined;
     for (let round = 0; round < 4; round++) {
       this.trace(plan, box);
-      traced = box;
       const n = this.n;
       const s = this.side;
       let any = false;
@@ -327,7 +325,7 @@ class GhostGrid {
       box = next;
     }
     // the last growth step is traced too: the shrinking below reads the grid of `box`
-    if (traced !== box) this.trace(plan, box);
+    if (this.lastTraced !== box) this.trace(plan, box);
     // shrink onto the rays that pass (a thin cat's eye would otherwise get only a few cells),
     // keeping a cell and a half of margin; each shrunk box is traced with 4% more on every side
     // for the other wavelengths' chromatic shift, so the last one traced is the box returned
