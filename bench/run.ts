@@ -1,11 +1,12 @@
 // `npm run bench`: stage costs at production sizes, as ratios measured in one run.
 // Each figure is the median of several runs after a warm-up. Later stages add their rows here.
 
+import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { renderSequence } from '../src/render/sequence.js';
-import { presetNames } from '../src/io/presets.js';
+import { fileURLToPath } from 'node:url';
+import { flareShot, type SequenceRun } from './sequence-child.js';
 import { addGhosts } from '../src/elements/ghosts.js';
 import { encodePng } from '../src/io/png.js';
 import { presetPath } from '../src/io/presets.js';
@@ -88,44 +89,28 @@ for (const quality of ['draft', 'low', 'medium', 'high'] as GhostQuality[]) {
   rows.push([`ghosts zoom-like-35 (${system.kept} kept, ${stats.drawn} drawn), ${quality}`, `${ms(ghostMs)}  (x${(ghostMs / encode16).toFixed(2)} of encode; lens prep ${prep.toFixed(0)} ms)`]);
 }
 
-// --- the sequence renderer: frames per second with 1 and 2 workers, full flare at 1920x1080
-function flareShot(width: number, height: number, frames: number, dir: string): ResolvedShot {
-  const text = `version: 1
-frame: { width: ${width}, height: ${height}, rate: 24, first: 1, last: ${frames} }
-lights:
-  - name: sun
-    position: [{ frame: 1, x: ${width * 0.2}, y: ${height * 0.3} }, { frame: ${Math.max(2, frames)}, x: ${width * 0.8}, y: ${height * 0.25} }]
-    intensity: 13
-    radius: 8
-    colour: { kelvin: 5200 }
-lens: { preset: double-gauss-50, f_number: 4 }
-flare:
-  glow: { fraction: 0.02, size: 8, falloff: 2.6 }
-output: { path: "${dir}/f.####.png" }
-`;
-  return resolveShot(text, path.join(dir, 'bench.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
-}
-
-// 48 frames, the demo's length: a short shot, long enough that start-up (lens preparation, worker
-// spawn, each worker's JIT warm-up on its first frames) does not dominate; the steady rate is taken
-// over the second half of the frames
+// --- the sequence renderer: frames per second with 1 and 2 workers, full flare at 1920x1080.
+// Each render runs in a fresh process, as `straylight render` does: run here, the 1-worker render
+// (which renders in the main thread) would start with the JIT already warmed by the rows above,
+// which no user's render has. The order is 1, 2, 2, 1 so a drift in the machine's speed over the
+// runs weighs on both counts alike; each count's figure is the mean of its two runs.
+// 48 frames, the demo's length: start-up (lens preparation, worker spawn, each worker's JIT warm-up
+// on its first frames) is part of the figure; the second half of the frames gives the steady rate.
 const seqFrames = Number(process.env.BENCH_FRAMES ?? 48);
-const fps: Record<number, number> = {};
-const steady: Record<number, number> = {};
-let startup: number[] = [];
-for (const jobs of [1, 2]) {
-  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
-  const t = performance.now();
-  const stamps: number[] = [];
-  const r = await renderSequence(flareShot(1920, 1080, seqFrames, dir), { jobs, force: true, onFrame: () => stamps.push(performance.now()) });
-  fps[jobs] = seqFrames / ((performance.now() - t) / 1000);
-  const half = Math.floor(stamps.length / 2);
-  steady[jobs] = (stamps.length - 1 - half) / ((stamps[stamps.length - 1] - stamps[half]) / 1000);
-  if (jobs === 2) startup = r.startupMs;
-  rmSync(dir, { recursive: true, force: true });
+const child = path.join(path.dirname(fileURLToPath(import.meta.url)), 'sequence-child.js');
+function sequenceRun(jobs: number, width: number, height: number, frames: number): SequenceRun {
+  const out = execFileSync(process.execPath, [child, String(jobs), String(width), String(height), String(frames)], { encoding: 'utf8' });
+  return JSON.parse(out.trim().split('\n').pop()!) as SequenceRun;
 }
-rows.push([`sequence 1920x1080, double-gauss-50 + glow, ${seqFrames} frames, --jobs 1`, `${fps[1].toFixed(2)} fps (second half ${steady[1].toFixed(2)} fps)`]);
-rows.push([`sequence 1920x1080, same, --jobs 2`, `${fps[2].toFixed(2)} fps (second half ${steady[2].toFixed(2)} fps)`]);
+const seqRuns: SequenceRun[] = [1, 2, 2, 1].map((jobs) => sequenceRun(jobs, 1920, 1080, seqFrames));
+const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
+const of = (jobs: number) => seqRuns.filter((r) => r.jobs === jobs);
+const fps = { 1: mean(of(1).map((r) => r.fps)), 2: mean(of(2).map((r) => r.fps)) };
+const steady = { 1: mean(of(1).map((r) => r.steadyFps)), 2: mean(of(2).map((r) => r.steadyFps)) };
+const startup = of(2).flatMap((r) => r.startupMs);
+const runsOf = (jobs: number) => of(jobs).map((r) => r.fps.toFixed(2)).join(', ');
+rows.push([`sequence 1920x1080, double-gauss-50 + glow, ${seqFrames} frames, --jobs 1`, `${fps[1].toFixed(2)} fps (runs ${runsOf(1)}; second half ${steady[1].toFixed(2)} fps)`]);
+rows.push([`sequence 1920x1080, same, --jobs 2`, `${fps[2].toFixed(2)} fps (runs ${runsOf(2)}; second half ${steady[2].toFixed(2)} fps)`]);
 rows.push(['ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)', `${(fps[2] / fps[1]).toFixed(2)} (second half ${(steady[2] / steady[1]).toFixed(2)})`]);
 // what the machine allows: one full-frame pass (read-modify-write of a 1920x1080 RGBA float frame,
 // 33 MB, like the glow or the veil) timed on 1 thread and on 2 threads at once. A rendered frame
@@ -156,15 +141,11 @@ rows.push(['ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)', `${(fps[2] / fps
 }
 rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.map((v) => `${v.toFixed(0)} ms`).join(', ')]);
 
-// --- peak memory (RSS, the whole process with its worker threads) at 3840x2160, 2 workers
+// --- peak memory at 3840x2160 with 2 workers, in a fresh process: the whole process with its
+// worker threads, as getrusage's maximum RSS
 {
-  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
-  let peak = process.memoryUsage().rss;
-  const sample = setInterval(() => (peak = Math.max(peak, process.memoryUsage().rss)), 20);
-  await renderSequence(flareShot(3840, 2160, 6, dir), { jobs: 2, force: true });
-  clearInterval(sample);
-  rows.push(['peak RSS, 3840x2160 sequence, 2 workers (target < 1 GiB)', `${(peak / 2 ** 20).toFixed(0)} MiB`]);
-  rmSync(dir, { recursive: true, force: true });
+  const r = sequenceRun(2, 3840, 2160, 6);
+  rows.push(['peak RSS, 3840x2160 sequence, 2 workers (target < 1 GiB)', `${r.maxRssMiB.toFixed(0)} MiB`]);
 }
 
 // --- starburst kernel and the light-centred elements at 1920x1080 and 3840x2160

@@ -1,0 +1,65 @@
+// One sequence render in a fresh process, as `straylight render` runs: `npm run bench` starts this
+// for each worker count so neither count inherits the JIT warm-up of the bench's earlier rows.
+// Usage: node dist/bench/sequence-child.js JOBS WIDTH HEIGHT FRAMES
+// Prints one JSON line: frames per second over the whole render and over its second half, each
+// worker's start-up, and the process's peak resident memory (getrusage's maximum RSS).
+
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { presetNames, presetPath } from '../src/io/presets.js';
+import { renderSequence } from '../src/render/sequence.js';
+import { resolveShot } from '../src/shot/resolve.js';
+import type { ResolvedShot } from '../src/shot/types.js';
+
+export interface SequenceRun {
+  jobs: number;
+  fps: number;
+  steadyFps: number;
+  startupMs: number[];
+  maxRssMiB: number;
+}
+
+/** The bench's sequence: one sun crossing the frame through the double-Gauss preset, with glow. */
+export function flareShot(width: number, height: number, frames: number, dir: string): ResolvedShot {
+  const text = `version: 1
+frame: { width: ${width}, height: ${height}, rate: 24, first: 1, last: ${frames} }
+lights:
+  - name: sun
+    position: [{ frame: 1, x: ${width * 0.2}, y: ${height * 0.3} }, { frame: ${Math.max(2, frames)}, x: ${width * 0.8}, y: ${height * 0.25} }]
+    intensity: 13
+    radius: 8
+    colour: { kelvin: 5200 }
+lens: { preset: double-gauss-50, f_number: 4 }
+flare:
+  glow: { fraction: 0.02, size: 8, falloff: 2.6 }
+output: { path: "${dir}/f.####.png" }
+`;
+  return resolveShot(text, path.join(dir, 'bench.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
+}
+
+async function main(): Promise<void> {
+  const [jobs, width, height, frames] = process.argv.slice(2).map(Number);
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  try {
+    const shot = flareShot(width, height, frames, dir);
+    const stamps: number[] = [];
+    const t = performance.now();
+    const r = await renderSequence(shot, { jobs, force: true, onFrame: () => stamps.push(performance.now()) });
+    const wall = performance.now() - t;
+    const half = Math.floor(stamps.length / 2);
+    const out: SequenceRun = {
+      jobs,
+      fps: frames / (wall / 1000),
+      steadyFps: (stamps.length - 1 - half) / ((stamps[stamps.length - 1] - stamps[half]) / 1000),
+      startupMs: r.startupMs,
+      maxRssMiB: process.resourceUsage().maxRSS / 1024,
+    };
+    console.log(JSON.stringify(out));
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) await main();
