@@ -91,11 +91,23 @@ interface Layer {
   by1: number;
 }
 
+/**
+ * A pixel bound from Math.floor/ceil as a small integer: clamped far outside any frame, and -0 made
+ * 0, so arithmetic on it stays in V8's integer representation (a -0 arriving there after the code
+ * was optimised sends it back to the interpreter, once per thread).
+ */
+function pixelBound(v: number): number {
+  return v < -1e9 ? -1e9 : v > 1e9 ? 1e9 : v | 0;
+}
+
+/** Grow the layer's written box to take in x0..x1, y0..y1. */
 function touch(layer: Layer, x0: number, y0: number, x1: number, y1: number): void {
-  if (x0 < layer.bx0) layer.bx0 = x0;
-  if (y0 < layer.by0) layer.by0 = y0;
-  if (x1 > layer.bx1) layer.bx1 = x1;
-  if (y1 > layer.by1) layer.by1 = y1;
+  // every store happens on every call: a store first made late (the box growing right after the
+  // code was optimised) would find no feedback and send the callers back to the interpreter
+  layer.bx0 = x0 < layer.bx0 ? x0 : layer.bx0;
+  layer.by0 = y0 < layer.by0 ? y0 : layer.by0;
+  layer.bx1 = x1 > layer.bx1 ? x1 : layer.bx1;
+  layer.by1 = y1 > layer.by1 ? y1 : layer.by1;
 }
 
 function resetBox(layer: Layer): void {
@@ -194,6 +206,7 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   }
 }
 
+/** Box literals list x0, y0, x1, y1 in that order everywhere: one object shape for V8. */
 interface Box {
   x0: number;
   y0: number;
@@ -286,7 +299,7 @@ class GhostGrid {
       const half = Math.abs(this.stopRadius / a) * 1.15;
       const cx = (-b * sx) / a;
       const cy = (-b * sy) / a;
-      box = { x0: Math.max(box.x0, cx - half), x1: Math.min(box.x1, cx + half), y0: Math.max(box.y0, cy - half), y1: Math.min(box.y1, cy + half) };
+      box = { x0: Math.max(box.x0, cx - half), y0: Math.max(box.y0, cy - half), x1: Math.min(box.x1, cx + half), y1: Math.min(box.y1, cy + half) };
     }
     if (box.x1 <= box.x0 || box.y1 <= box.y0) box = { x0: -front, y0: -front, x1: front, y1: front };
     let searched = false;
@@ -317,8 +330,8 @@ class GhostGrid {
       const h = box.y1 - box.y0;
       const next: Box = {
         x0: grow.l ? Math.max(-front, box.x0 - 0.5 * w) : box.x0,
-        x1: grow.r ? Math.min(front, box.x1 + 0.5 * w) : box.x1,
         y0: grow.t ? Math.max(-front, box.y0 - 0.5 * h) : box.y0,
+        x1: grow.r ? Math.min(front, box.x1 + 0.5 * w) : box.x1,
         y1: grow.b ? Math.min(front, box.y1 + 0.5 * h) : box.y1,
       };
       if (next.x0 === box.x0 && next.x1 === box.x1 && next.y0 === box.y0 && next.y1 === box.y1) break;
@@ -349,8 +362,8 @@ class GhostGrid {
         }
       }
       if (i1 < i0) break;
-      const tight: Box = { x0: box.x0 + (i0 - 1.5) * cw, x1: box.x0 + (i1 + 1.5) * cw, y0: box.y0 + (j0 - 1.5) * ch, y1: box.y0 + (j1 + 1.5) * ch };
-      const clipped: Box = { x0: Math.max(box.x0, tight.x0), x1: Math.min(box.x1, tight.x1), y0: Math.max(box.y0, tight.y0), y1: Math.min(box.y1, tight.y1) };
+      const tight: Box = { x0: box.x0 + (i0 - 1.5) * cw, y0: box.y0 + (j0 - 1.5) * ch, x1: box.x0 + (i1 + 1.5) * cw, y1: box.y0 + (j1 + 1.5) * ch };
+      const clipped: Box = { x0: Math.max(box.x0, tight.x0), y0: Math.max(box.y0, tight.y0), x1: Math.min(box.x1, tight.x1), y1: Math.min(box.y1, tight.y1) };
       if ((clipped.x1 - clipped.x0) * (clipped.y1 - clipped.y0) > 0.6 * (box.x1 - box.x0) * (box.y1 - box.y0)) break;
       box = this.chromaticMargin(clipped, front);
       shrunk = true;
@@ -364,7 +377,7 @@ class GhostGrid {
   private chromaticMargin(box: Box, front: number): Box {
     const mx = 0.04 * (box.x1 - box.x0);
     const my = 0.04 * (box.y1 - box.y0);
-    return { x0: Math.max(-front, box.x0 - mx), x1: Math.min(front, box.x1 + mx), y0: Math.max(-front, box.y0 - my), y1: Math.min(front, box.y1 + my) };
+    return { x0: Math.max(-front, box.x0 - mx), y0: Math.max(-front, box.y0 - my), x1: Math.min(front, box.x1 + mx), y1: Math.min(front, box.y1 + my) };
   }
 
   /** The box of the last trace (the grid holds its rays). */
@@ -537,7 +550,7 @@ class GhostGrid {
   private foldedPeak = 0;
 
   draw(img: FloatImage, layer: Layer, scale: [number, number, number]): void {
-    const { n, side, valid, vig } = this;
+    const { n, side, valid, vig, geo } = this;
     layer.used = true;
     for (let j = 0; j < n; j++) {
       for (let i = 0; i < n; i++) {
@@ -547,9 +560,9 @@ class GhostGrid {
         const d = a + side;
         if (!(valid[a] && valid[b] && valid[c] && valid[d])) continue;
         // cells wholly outside the barrel, or lost, at every corner carry nothing
-        if (vig[a] > 1.2 && vig[b] > 1.2 && vig[c] > 1.2 && vig[d] > 1.2) continue;
-        const geo = this.geo;
-        if (geo[a] < -0.2 && geo[b] < -0.2 && geo[c] < -0.2 && geo[d] < -0.2) continue;
+        // (min/max read all four corners every time, where && chains would first read some late)
+        if (Math.min(vig[a], vig[b], vig[c], vig[d]) > 1.2) continue;
+        if (Math.max(geo[a], geo[b], geo[c], geo[d]) < -0.2) continue;
         this.triangle(img, layer, a, b, c, scale);
         this.triangle(img, layer, a, c, d, scale);
       }
@@ -626,7 +639,10 @@ class GhostGrid {
     const { vig, geo, su, sv, shape } = this;
     if (!this.addPlane(1 - vig[a], 1 - vig[b], 1 - vig[c])) return;
     // the margin is not a distance: only near its zero does it mark an edge
-    if (Math.min(geo[a], geo[b], geo[c]) < 0.05 && !this.addPlane(geo[a], geo[b], geo[c])) return;
+    const ga = geo[a];
+    const gb = geo[b];
+    const gc = geo[c];
+    if (Math.min(ga, gb, gc) < 0.05 && !this.addPlane(ga, gb, gc)) return;
     // blade edges of every stop crossing first, then (for a rounded iris) the circle
     const nb = shape.nx.length;
     const o = shape.offset;
@@ -680,10 +696,16 @@ class GhostGrid {
     const s0 = scale[0];
     const s1 = scale[1];
     const s2 = scale[2];
+    // both targets are read on every call: a property first read late (the first full-resolution
+    // ghost) would leave V8 without feedback for it and send this function back to the interpreter
+    const imgData = img.data;
+    const layerData = layer.data;
+    const imgWidth = img.width;
+    const layerWidth = layer.w;
     const full = layer.scale === 1;
-    const d = full ? img.data : layer.data;
+    const d = full ? imgData : layerData;
     const stride = full ? 4 : 3;
-    const w = full ? img.width : layer.w;
+    const w = full ? imgWidth : layerWidth;
     // the three barycentric constraints' slopes along a row (see the span below)
     const sl0 = ex1;
     const sl1 = -ey1;
@@ -723,14 +745,15 @@ class GhostGrid {
         const slope = pgx[p] * pinv[p];
         const a0 = 0.5 + (p0[p] + bx * pgx[p] + oy * pgy[p]) * pinv[p];
         if (slope > 0) {
-          pxFrom = Math.max(pxFrom, Math.floor((-MASK_SLACK - a0) / slope) + 1);
+          pxFrom = Math.max(pxFrom, pixelBound(Math.floor((-MASK_SLACK - a0) / slope)) + 1);
           inFrom = Math.max(inFrom, Math.ceil((1 + MASK_SLACK - a0) / slope));
         } else if (slope < 0) {
-          pxTo = Math.min(pxTo, Math.ceil((-MASK_SLACK - a0) / slope) - 1);
+          pxTo = Math.min(pxTo, pixelBound(Math.ceil((-MASK_SLACK - a0) / slope)) - 1);
           inTo = Math.min(inTo, Math.floor((1 + MASK_SLACK - a0) / slope));
         } else {
-          if (a0 <= -MASK_SLACK) pxTo = pxFrom - 1;
-          if (a0 < 1 + MASK_SLACK) inTo = inFrom - 1;
+          // (spans start at column 0 or later, so -1 empties them)
+          if (a0 <= -MASK_SLACK) pxTo = -1;
+          if (a0 < 1 + MASK_SLACK) inTo = -1;
         }
       }
       for (let q = 0; q < nc && pxFrom <= pxTo; q++) {
@@ -744,12 +767,12 @@ class GhostGrid {
         const inner = 1 - 0.5 * cw[q] - MASK_SLACK;
         if (qa < 1e-18) {
           // (nearly) constant along the row: test it pixel by pixel
-          inTo = inFrom - 1;
+          inTo = -1;
           continue;
         }
         const dOut = qb * qb - qa * (qc - outer * outer);
         if (dOut <= 0) {
-          pxTo = pxFrom - 1;
+          pxTo = -1;
           break;
         }
         const sOut = Math.sqrt(dOut);
@@ -757,7 +780,7 @@ class GhostGrid {
         pxTo = Math.min(pxTo, Math.ceil((-qb + sOut) / qa));
         const dIn = inner > 0 ? qb * qb - qa * (qc - inner * inner) : -1;
         if (dIn <= 0) {
-          inTo = inFrom - 1;
+          inTo = -1;
           continue;
         }
         const sIn = Math.sqrt(dIn);
@@ -885,56 +908,64 @@ function upsample2x(layer: Layer, out: Float32Array, ow: number, oh: number, str
     i1s[x - xa] = Math.min(w - 1, x0 + 1) * 3;
     txs[x - xa] = fx - x0;
   }
-  for (let y = ya; y <= yb; y++) {
-    const fy = Math.min(h - 1, Math.max(0, (y + 0.5) / 2 - 0.5));
-    const y0 = Math.floor(fy);
-    const y1 = Math.min(h - 1, y0 + 1);
-    const ty = fy - y0;
-    // the layer row interpolated at this height, over the columns the span needs
-    const ca = Math.max(0, (xa >> 1) - 1);
-    const cb = Math.min(w - 1, (xb >> 1) + 1);
-    for (let i = ca * 3; i < (cb + 1) * 3; i++) row[i] = data[y0 * w * 3 + i] + (data[y1 * w * 3 + i] - data[y0 * w * 3 + i]) * ty;
-    const base = y * ow;
-    // away from the layer's first and last columns the taps are fixed: target column 2k takes
-    // 3/4 of layer column k and 1/4 of k - 1, column 2k + 1 3/4 of k and 1/4 of k + 1; walked in
-    // pairs with the three columns in registers. The edges take the general taps.
-    let fast0 = Math.max(xa, 2);
-    if (fast0 & 1) fast0++;
-    const fast1 = Math.min(xb, 2 * w - 3);
-    for (let x = xa; x <= xb; x++) {
-      if (x === fast0 && fast0 + 1 <= fast1) {
-        let k3 = (x >> 1) * 3;
-        let o = (base + x) * stride;
-        for (; x + 1 <= fast1; x += 2, k3 += 3, o += 2 * stride) {
-          const a0 = row[k3 - 3];
-          const a1 = row[k3 - 2];
-          const a2 = row[k3 - 1];
-          const b0 = row[k3];
-          const b1 = row[k3 + 1];
-          const b2 = row[k3 + 2];
-          const c0 = row[k3 + 3];
-          const c1 = row[k3 + 4];
-          const c2 = row[k3 + 5];
-          out[o] += a0 + (b0 - a0) * 0.75;
-          out[o + 1] += a1 + (b1 - a1) * 0.75;
-          out[o + 2] += a2 + (b2 - a2) * 0.75;
-          out[o + stride] += b0 + (c0 - b0) * 0.25;
-          out[o + stride + 1] += b1 + (c1 - b1) * 0.25;
-          out[o + stride + 2] += b2 + (c2 - b2) * 0.25;
-        }
-        if (x > xb) break;
+  for (let y = ya; y <= yb; y++) upsampleRow(data, w, h, y, row, xa, xb, i0s, i1s, txs, out, ow, stride);
+  const by0 = Math.max(0, layer.by0);
+  const by1 = Math.min(h - 1, layer.by1);
+  const bx0 = Math.max(0, layer.bx0);
+  const bx1 = Math.min(w - 1, layer.bx1);
+  for (let y = by0; y <= by1; y++) data.fill(0, (y * w + bx0) * 3, (y * w + bx1 + 1) * 3);
+}
+
+/**
+ * Target row y of upsample2x (its own function so V8 optimises it by call count in a thread's
+ * first frame instead of compiling the whole layer walk on stack replacement).
+ */
+function upsampleRow(data: Float32Array, w: number, h: number, y: number, row: Float32Array, xa: number, xb: number, i0s: Int32Array, i1s: Int32Array, txs: Float32Array, out: Float32Array, ow: number, stride: number): void {
+  const fy = Math.min(h - 1, Math.max(0, (y + 0.5) / 2 - 0.5));
+  const y0 = Math.floor(fy);
+  const y1 = Math.min(h - 1, y0 + 1);
+  const ty = fy - y0;
+  // the layer row interpolated at this height, over the columns the span needs
+  const ca = Math.max(0, (xa >> 1) - 1);
+  const cb = Math.min(w - 1, (xb >> 1) + 1);
+  for (let i = ca * 3; i < (cb + 1) * 3; i++) row[i] = data[y0 * w * 3 + i] + (data[y1 * w * 3 + i] - data[y0 * w * 3 + i]) * ty;
+  const base = y * ow;
+  // away from the layer's first and last columns the taps are fixed: target column 2k takes
+  // 3/4 of layer column k and 1/4 of k - 1, column 2k + 1 3/4 of k and 1/4 of k + 1; walked in
+  // pairs with the three columns in registers. The edges take the general taps.
+  let fast0 = Math.max(xa, 2);
+  if (fast0 & 1) fast0++;
+  const fast1 = Math.min(xb, 2 * w - 3);
+  for (let x = xa; x <= xb; x++) {
+    if (x === fast0 && fast0 + 1 <= fast1) {
+      let k3 = (x >> 1) * 3;
+      let o = (base + x) * stride;
+      for (; x + 1 <= fast1; x += 2, k3 += 3, o += 2 * stride) {
+        const a0 = row[k3 - 3];
+        const a1 = row[k3 - 2];
+        const a2 = row[k3 - 1];
+        const b0 = row[k3];
+        const b1 = row[k3 + 1];
+        const b2 = row[k3 + 2];
+        const c0 = row[k3 + 3];
+        const c1 = row[k3 + 4];
+        const c2 = row[k3 + 5];
+        out[o] += a0 + (b0 - a0) * 0.75;
+        out[o + 1] += a1 + (b1 - a1) * 0.75;
+        out[o + 2] += a2 + (b2 - a2) * 0.75;
+        out[o + stride] += b0 + (c0 - b0) * 0.25;
+        out[o + stride + 1] += b1 + (c1 - b1) * 0.25;
+        out[o + stride + 2] += b2 + (c2 - b2) * 0.25;
       }
-      const k = x - xa;
-      const i0 = i0s[k];
-      const i1 = i1s[k];
-      const tx = txs[k];
-      const o = (base + x) * stride;
-      out[o] += row[i0] + (row[i1] - row[i0]) * tx;
-      out[o + 1] += row[i0 + 1] + (row[i1 + 1] - row[i0 + 1]) * tx;
-      out[o + 2] += row[i0 + 2] + (row[i1 + 2] - row[i0 + 2]) * tx;
+      if (x > xb) return;
     }
-  }
-  for (let y = Math.max(0, layer.by0); y <= Math.min(h - 1, layer.by1); y++) {
-    data.fill(0, (y * w + Math.max(0, layer.bx0)) * 3, (y * w + Math.min(w - 1, layer.bx1) + 1) * 3);
+    const k = x - xa;
+    const i0 = i0s[k];
+    const i1 = i1s[k];
+    const tx = txs[k];
+    const o = (base + x) * stride;
+    out[o] += row[i0] + (row[i1] - row[i0]) * tx;
+    out[o + 1] += row[i0 + 1] + (row[i1 + 1] - row[i0 + 1]) * tx;
+    out[o + 2] += row[i0 + 2] + (row[i1 + 2] - row[i0 + 2]) * tx;
   }
 }

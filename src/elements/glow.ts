@@ -55,42 +55,46 @@ export function addGlow(img: FloatImage, g: GlowSource, pixelAspect: number, ove
   const nearR = 2 + 1.5 * Math.hypot(pixelAspect, 1);
   const near2 = Math.max(nearR * nearR, 0);
   const smallCore = sizePx < 3 * Math.hypot(pixelAspect, 1);
-  const inv = 1 / (NEAR_SAMPLES * NEAR_SAMPLES);
-  const d = img.data;
-  const w = img.width;
   const invS2 = 1 / s2;
-  for (let y = 0; y < img.height; y++) {
-    const dy = y + 0.5 - yPx;
-    const dy2 = dy * dy;
-    let i = y * w * 4;
-    for (let x = 0; x < w; x++, i += 4) {
-      const dx = (x + 0.5 - xPx) * pixelAspect;
-      const d2 = dx * dx + dy2;
-      let k: number;
-      if (smallCore && d2 < near2 + 4 * s2) {
-        k = 0;
-        for (let sy = 0; sy < NEAR_SAMPLES; sy++) {
-          const py = y + (sy + 0.5) / NEAR_SAMPLES - yPx;
-          for (let sx = 0; sx < NEAR_SAMPLES; sx++) {
-            const px = (x + (sx + 0.5) / NEAR_SAMPLES - xPx) * pixelAspect;
-            k += Math.exp(-b * Math.log(1 + (px * px + py * py) * invS2));
-          }
+  for (let y = 0; y < img.height; y++) glowRow(img.data, y * img.width * 4, img.width, y, yPx, xPx, pixelAspect, b, invS2, smallCore ? near2 + 4 * s2 : -1, er, eg, eb, overwrite);
+}
+
+/**
+ * Row y of the glow. Pixels nearer than `nearD2`
+ * (squared distance) average NEAR_SAMPLES^2 sub-samples. A function per row, not a frame-long loop,
+ * so V8 optimises it by call count in a thread's first frame and keeps it.
+ */
+function glowRow(d: Float32Array, i: number, w: number, y: number, yPx: number, xPx: number, pixelAspect: number, b: number, invS2: number, nearD2: number, er: number, eg: number, eb: number, overwrite: boolean): void {
+  const dy = y + 0.5 - yPx;
+  const dy2 = dy * dy;
+  const inv = 1 / (NEAR_SAMPLES * NEAR_SAMPLES);
+  for (let x = 0; x < w; x++, i += 4) {
+    const dx = (x + 0.5 - xPx) * pixelAspect;
+    const d2 = dx * dx + dy2;
+    let k: number;
+    if (d2 < nearD2) {
+      k = 0;
+      for (let sy = 0; sy < NEAR_SAMPLES; sy++) {
+        const py = y + (sy + 0.5) / NEAR_SAMPLES - yPx;
+        for (let sx = 0; sx < NEAR_SAMPLES; sx++) {
+          const px = (x + (sx + 0.5) / NEAR_SAMPLES - xPx) * pixelAspect;
+          k += Math.exp(-b * Math.log(1 + (px * px + py * py) * invS2));
         }
-        k *= inv;
-      } else {
-        // exp(-b log(.)) runs about twice as fast as Math.pow in V8 here
-        k = Math.exp(-b * Math.log(1 + d2 * invS2));
       }
-      if (overwrite) {
-        d[i] = er * k;
-        d[i + 1] = eg * k;
-        d[i + 2] = eb * k;
-        d[i + 3] = 0;
-      } else {
-        d[i] += er * k;
-        d[i + 1] += eg * k;
-        d[i + 2] += eb * k;
-      }
+      k *= inv;
+    } else {
+      // exp(-b log(.)) runs about twice as fast as Math.pow in V8 here
+      k = Math.exp(-b * Math.log(1 + d2 * invS2));
+    }
+    if (overwrite) {
+      d[i] = er * k;
+      d[i + 1] = eg * k;
+      d[i + 2] = eb * k;
+      d[i + 3] = 0;
+    } else {
+      d[i] += er * k;
+      d[i + 1] += eg * k;
+      d[i + 2] += eb * k;
     }
   }
 }
