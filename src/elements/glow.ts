@@ -60,32 +60,18 @@ export function addGlow(img: FloatImage, g: GlowSource, pixelAspect: number, ove
 }
 
 /**
- * Row y of the glow. Pixels nearer than `nearD2`
- * (squared distance) average NEAR_SAMPLES^2 sub-samples. A function per row, not a frame-long loop,
- * so V8 optimises it by call count in a thread's first frame and keeps it.
+ * Row y of the glow. Pixels nearer than `nearD2` (squared distance) average NEAR_SAMPLES^2
+ * sub-samples. A function per row, not a frame-long loop, so V8 optimises it by call count in a
+ * thread's first frame and keeps it.
  */
 function glowRow(d: Float32Array, i: number, w: number, y: number, yPx: number, xPx: number, pixelAspect: number, b: number, invS2: number, nearD2: number, er: number, eg: number, eb: number, overwrite: boolean): void {
   const dy = y + 0.5 - yPx;
   const dy2 = dy * dy;
-  const inv = 1 / (NEAR_SAMPLES * NEAR_SAMPLES);
   for (let x = 0; x < w; x++, i += 4) {
     const dx = (x + 0.5 - xPx) * pixelAspect;
     const d2 = dx * dx + dy2;
-    let k: number;
-    if (d2 < nearD2) {
-      k = 0;
-      for (let sy = 0; sy < NEAR_SAMPLES; sy++) {
-        const py = y + (sy + 0.5) / NEAR_SAMPLES - yPx;
-        for (let sx = 0; sx < NEAR_SAMPLES; sx++) {
-          const px = (x + (sx + 0.5) / NEAR_SAMPLES - xPx) * pixelAspect;
-          k += Math.exp(-b * Math.log(1 + (px * px + py * py) * invS2));
-        }
-      }
-      k *= inv;
-    } else {
-      // exp(-b log(.)) runs about twice as fast as Math.pow in V8 here
-      k = Math.exp(-b * Math.log(1 + d2 * invS2));
-    }
+    // exp(-b log(.)) runs about twice as fast as Math.pow in V8 here
+    const k = d2 < nearD2 ? nearGlow(x, y, xPx, yPx, pixelAspect, b, invS2) : Math.exp(-b * Math.log(1 + d2 * invS2));
     if (overwrite) {
       d[i] = er * k;
       d[i + 1] = eg * k;
@@ -97,4 +83,17 @@ function glowRow(d: Float32Array, i: number, w: number, y: number, yPx: number, 
       d[i + 2] += eb * k;
     }
   }
+}
+
+/** The profile averaged over NEAR_SAMPLES^2 points of pixel (x, y), for pixels near the centre. */
+function nearGlow(x: number, y: number, xPx: number, yPx: number, pixelAspect: number, b: number, invS2: number): number {
+  let k = 0;
+  for (let sy = 0; sy < NEAR_SAMPLES; sy++) {
+    const py = y + (sy + 0.5) / NEAR_SAMPLES - yPx;
+    for (let sx = 0; sx < NEAR_SAMPLES; sx++) {
+      const px = (x + (sx + 0.5) / NEAR_SAMPLES - xPx) * pixelAspect;
+      k += Math.exp(-b * Math.log(1 + (px * px + py * py) * invS2));
+    }
+  }
+  return k * (1 / (NEAR_SAMPLES * NEAR_SAMPLES));
 }
