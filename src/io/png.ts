@@ -12,13 +12,11 @@
 // PNG stores straight (un-premultiplied) alpha (PNG spec section 4.3.3), so a premultiplied pass is
 // divided by its alpha on the way out; a reader that premultiplies on load recovers the pass.
 // Every row uses the Sub filter: on flare passes (smooth, mostly dark) it deflates within a few
-// per cent of adaptive filtering at a fraction of the cost. zlib level 2: measured on 13 frames
-// (the bench sequence's and the demo's, 1080p and 540p 16-bit), deflating took 121-141 ms a frame
-// on average at level 3, 73-80 ms at level 2 and 60-74 ms at level 1, for 27.3, 28.8 (+5%) and
-// 29.9 MB (+9%) in all; level 6 had taken 343 ms against level 3's 124 ms on a glow frame.
-// Sequences are re-rendered often, so time wins, up to where the files grow faster than it falls.
+// per cent of adaptive filtering at a fraction of the cost. zlib level 3: measured on a 1920x1080
+// 16-bit glow frame, level 6 took 343 ms for 1.00 MB and level 3 124 ms for 1.37 MB; sequences
+// are re-rendered often, so time wins.
 
-const DEFLATE_LEVEL = 2;
+const DEFLATE_LEVEL = 3;
 
 import { crc32, deflateSync } from 'node:zlib';
 import type { FloatImage } from '../raster/image.js';
