@@ -1,10 +1,14 @@
 // Render worker thread: wires the message port to the handler.
+//
+// Replies are copied, not transferred: the first ArrayBuffer a thread detaches (by transferring
+// it) invalidates a V8-wide assumption that no buffer is ever detached, and every optimised
+// function that touches a typed array is thrown away and compiled again, in each worker, right
+// after its first frame. The screening cells are about 0.75 MB a 1080p frame; copying them costs
+// less than a millisecond.
 import { parentPort, workerData } from 'node:worker_threads';
 import { createWorkerHandler } from './worker-handler.js';
 
 const handle = createWorkerHandler(workerData?.fault);
 parentPort!.on('message', (msg) => {
-  const reply = handle(msg);
-  const transfer = reply.type === 'done' ? [reply.result.cells.lum.buffer, reply.result.cells.u.buffer, reply.result.cells.v.buffer, reply.result.cells.red.buffer] : [];
-  parentPort!.postMessage(reply, transfer as ArrayBuffer[]);
+  parentPort!.postMessage(handle(msg));
 });

@@ -46,14 +46,31 @@ export interface FlashReport {
   spans: FlaggedSpan[];
 }
 
-/** u'v' of linear RGB (IEC 61966-2-1 matrix to XYZ); black takes the D65 white's chromaticity. */
-export function uvPrime(r: number, g: number, b: number): [number, number] {
+/**
+ * u'v' of linear RGB (IEC 61966-2-1 matrix to XYZ), written to u[i] and v[i]; black takes the D65
+ * white's chromaticity. (Written into arrays rather than returned as a pair: a pair per analysis
+ * cell is 57,600 short-lived arrays a 1080p frame.)
+ */
+export function uvPrimeInto(r: number, g: number, b: number, u: Float32Array | Float64Array, v: Float32Array | Float64Array, i: number): void {
   const x = 0.4124 * r + 0.3576 * g + 0.1805 * b;
   const y = 0.2126 * r + 0.7152 * g + 0.0722 * b;
   const z = 0.0193 * r + 0.1192 * g + 0.9505 * b;
   const d = x + 15 * y + 3 * z;
-  if (d <= 1e-9) return [0.1978, 0.4683];
-  return [(4 * x) / d, (9 * y) / d];
+  if (d <= 1e-9) {
+    u[i] = 0.1978;
+    v[i] = 0.4683;
+  } else {
+    u[i] = (4 * x) / d;
+    v[i] = (9 * y) / d;
+  }
+}
+
+/** u'v' of linear RGB as a pair (see uvPrimeInto). */
+export function uvPrime(r: number, g: number, b: number): [number, number] {
+  const u = new Float64Array(1);
+  const v = new Float64Array(1);
+  uvPrimeInto(r, g, b, u, v, 0);
+  return [u[0], v[0]];
 }
 
 /** A frame reduced to the analysis grid: what the state machines need, small enough to send. */
@@ -96,9 +113,7 @@ function sumRow(rgb: ArrayLike<number>, i: number, widthPx: number, channels: nu
 /** A cell's luminance, chromaticity and red-saturation flag from its mean linear RGB. */
 function finishCell(out: FlashCells, c: number, r: number, g: number, b: number): void {
   out.lum[c] = 0.2126 * r + 0.7152 * g + 0.0722 * b;
-  const [u, v] = uvPrime(r, g, b);
-  out.u[c] = u;
-  out.v[c] = v;
+  uvPrimeInto(r, g, b, out.u, out.v, c);
   const er = srgbEncode(r);
   const sum = er + srgbEncode(g) + srgbEncode(b);
   out.red[c] = sum > 0 && er / sum >= RED_SATURATION ? 1 : 0;

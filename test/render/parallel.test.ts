@@ -36,6 +36,21 @@ function shotIn(dir: string) {
 
 
 describe('parallel rendering', () => {
+  it('never detaches an ArrayBuffer in a worker (V8 would then recompile every typed-array function)', () => {
+    // A worker that transfers a buffer away invalidates V8's "no buffer is ever detached"
+    // protector, which throws away all optimised code touching typed arrays in that thread, after
+    // its first frame. V8 reports the invalidation under --trace-protector-invalidation.
+    const dir = tempDir();
+    writeFileSync(path.join(dir, 'shot.yaml'), SHOT);
+    const r = spawnSync(process.execPath, ['--trace-protector-invalidation', bin, 'render', 'shot.yaml', '--jobs', '2', '--quiet'], { cwd: dir, encoding: 'utf8' });
+    expect(r.status).toBe(0);
+    expect(readdirSync(path.join(dir, 'out')).filter((f) => f.endsWith('.png'))).toHaveLength(12);
+    expect(r.stdout + r.stderr).not.toMatch(/Invalidating protector cell ArrayBufferDetaching/);
+    // the control: this Node reports a transfer under the flag
+    const control = spawnSync(process.execPath, ['--trace-protector-invalidation', '-e', 'const b = new ArrayBuffer(8); structuredClone(b, { transfer: [b] });'], { encoding: 'utf8' });
+    expect(control.stdout + control.stderr).toMatch(/Invalidating protector cell ArrayBufferDetaching/);
+  });
+
   it('gives byte-identical frames with 1, 2 and 4 workers', async () => {
     const outs: Record<string, string>[] = [];
     for (const jobs of [1, 2, 4]) {
