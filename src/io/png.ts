@@ -21,7 +21,7 @@ const DEFLATE_LEVEL = 3;
 import { crc32, deflateSync } from 'node:zlib';
 import type { FloatImage } from '../raster/image.js';
 import type { AlphaMode, Transfer } from '../shot/types.js';
-import { QUANTISE_BUCKETS, quantiser } from './quantise.js';
+import { codeOf, quantiser } from './quantise.js';
 
 export interface PngOptions {
   bitDepth: 8 | 16;
@@ -66,16 +66,6 @@ export function colourChunks(transfer: Transfer): Buffer[] {
 // One scanline buffer per thread, reused frame after frame (12 MB at 1080p 16-bit) instead of a
 // fresh zeroed one per frame.
 let scanBuffer: Buffer | undefined;
-
-/** Code value of a linear sample: the quantiser's lookup (same result as Quantiser.code). */
-function codeOf(v: number, max: number, table: Uint16Array | null, thresholds: Float64Array | null): number {
-  if (!(v > 0)) return 0;
-  if (v >= 1) return max;
-  if (table === null) return Math.round(v * max);
-  let c = table[(v * QUANTISE_BUCKETS) | 0];
-  while (thresholds![c + 1] <= v) c++;
-  return c;
-}
 
 /**
  * One row of samples, quantised to big-endian codes in `row`. The work is split into a function per

@@ -17,8 +17,6 @@ export interface Quantiser {
   max: number;
 }
 
-export const QUANTISE_BUCKETS = BUCKETS;
-
 const cache = new Map<string, Quantiser>();
 
 export function quantiser(transfer: Transfer, max: 255 | 65535): Quantiser {
@@ -31,8 +29,21 @@ export function quantiser(transfer: Transfer, max: 255 | 65535): Quantiser {
   return q;
 }
 
+/**
+ * Code value of a linear sample (clamped to [0, 1]) from a quantiser's parts; exported for hot
+ * loops, which pass the parts instead of calling through the object.
+ */
+export function codeOf(v: number, max: number, table: Uint16Array | null, thresholds: Float64Array | null): number {
+  if (!(v > 0)) return 0;
+  if (v >= 1) return max;
+  if (table === null) return Math.round(v * max);
+  let c = table[(v * BUCKETS) | 0];
+  while (thresholds![c + 1] <= v) c++;
+  return c;
+}
+
 function linearQuantiser(max: number): Quantiser {
-  return { code: (v) => (v > 0 ? (v < 1 ? Math.round(v * max) : max) : 0), table: null, thresholds: null, max };
+  return { code: (v) => codeOf(v, max, null, null), table: null, thresholds: null, max };
 }
 
 function srgbQuantiser(max: number): Quantiser {
@@ -52,12 +63,6 @@ function srgbQuantiser(max: number): Quantiser {
     table,
     thresholds,
     max,
-    code(v: number): number {
-      if (!(v > 0)) return 0;
-      if (v >= 1) return max;
-      let c = table[(v * BUCKETS) | 0];
-      while (thresholds[c + 1] <= v) c++;
-      return c;
-    },
+    code: (v: number): number => codeOf(v, max, table, thresholds),
   };
 }
