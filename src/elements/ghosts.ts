@@ -369,8 +369,10 @@ class GhostGrid {
       shrunk = true;
       this.trace(plan, box);
     }
-    // not shrunk: the margin is added after the last trace (the caller traces it again)
-    return shrunk ? box : this.chromaticMargin(box, front);
+    // not shrunk: the margin is added after the last trace (the caller traces it again). It is
+    // worked out on every call: a call first made late leaves V8 no feedback and deopts fitBox
+    const margined = this.chromaticMargin(box, front);
+    return shrunk ? box : margined;
   }
 
   /** The box with 4% more on every side (within the front) for the other wavelengths' chromatic shift. */
