@@ -67,6 +67,20 @@ export function colourChunks(transfer: Transfer): Buffer[] {
 // fresh zeroed one per frame.
 let scanBuffer: Buffer | undefined;
 
+function reserveScanlines(size: number): void {
+  if (!scanBuffer || scanBuffer.length < size) scanBuffer = Buffer.allocUnsafe(size);
+}
+
+/**
+ * Allocate this thread's scanline buffer for frames of this size and format, and write every page
+ * of it now (a render worker does this before its first frame; see prepareScratch).
+ */
+export function prepareScanlines(width: number, height: number, opts: PngOptions): void {
+  const bpp = (opts.alpha === 'none' ? 3 : 4) * (opts.bitDepth === 16 ? 2 : 1);
+  reserveScanlines((width * bpp + 1) * height);
+  scanBuffer!.fill(0);
+}
+
 /**
  * One row of samples, quantised to big-endian codes in `row`. The work is split into a function per
  * row (and the Sub filter below) rather than one loop over the frame: called 1080 times a frame, V8
@@ -134,8 +148,8 @@ function scanlines(img: FloatImage, opts: PngOptions): Buffer {
   const bpp = channels * bytesPerSample;
   const rowBytes = img.width * bpp;
   const size = (rowBytes + 1) * img.height;
-  if (!scanBuffer || scanBuffer.length < size) scanBuffer = Buffer.allocUnsafe(size);
-  const out = scanBuffer.subarray(0, size);
+  reserveScanlines(size);
+  const out = scanBuffer!.subarray(0, size);
   const row = new Uint8Array(rowBytes);
   for (let y = 0; y < img.height; y++) {
     quantiseRow(img.data, y * img.width * 4, img.width, row, channels, bytesPerSample, max, q.table, q.thresholds);

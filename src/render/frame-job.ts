@@ -3,10 +3,10 @@
 
 import { createHash } from 'node:crypto';
 import { writeFileAtomic } from '../io/atomic-write.js';
-import { encodeOutput } from '../io/encode-frame.js';
+import { encodeOutput, prepareOutput } from '../io/encode-frame.js';
 import { reduceFrame, type FlashCells } from '../safety/flash.js';
-import type { FloatImage } from '../raster/image.js';
-import type { ResolvedShot } from '../shot/types.js';
+import { FloatImage } from '../raster/image.js';
+import type { ResolvedOutput, ResolvedShot } from '../shot/types.js';
 import { renderFrame } from './render-frame.js';
 
 export interface FrameJob {
@@ -29,6 +29,20 @@ export function sha256(data: Uint8Array): string {
 
 /** One image per thread, reused frame after frame (the job is done with it before the next). */
 let scratch: FloatImage | undefined;
+
+/**
+ * Allocate this thread's frame and the encoder's buffers and write every page of them now. A fresh
+ * 1080p frame is 33 MB and its 16-bit scanlines 12 MB, about 11,000 page faults when first written;
+ * a worker does this while the main thread is still preparing the lens, so its first frame does not
+ * pay them.
+ */
+export function prepareThread(width: number, height: number, output: ResolvedOutput): void {
+  if (!scratch || scratch.width !== width || scratch.height !== height) {
+    scratch = new FloatImage(width, height);
+    scratch.data.fill(0);
+  }
+  prepareOutput(width, height, output);
+}
 
 export function runFrameJob(shot: ResolvedShot, job: FrameJob): FrameDone {
   const start = performance.now();

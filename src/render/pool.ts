@@ -55,7 +55,8 @@ export class RenderPool {
 
   private spawn(): Slot {
     const born = performance.now();
-    const worker = new Worker(workerScript(), { workerData: { fault: this.fault } });
+    const frame = { widthPx: this.shot.frame.widthPx, heightPx: this.shot.frame.heightPx, output: this.shot.output };
+    const worker = new Worker(workerScript(), { workerData: { fault: this.fault, frame } });
     const slot: Slot = { worker, busy: undefined, ready: false };
     worker.on('message', (msg: FromWorker) => this.onMessage(slot, msg, born));
     worker.on('error', () => this.onDeath(slot));

@@ -6,9 +6,13 @@
 // after its first frame. The screening cells are about 0.75 MB a 1080p frame; copying them costs
 // less than a millisecond.
 import { parentPort, workerData } from 'node:worker_threads';
+import { prepareThread } from './frame-job.js';
 import { createWorkerHandler } from './worker-handler.js';
 
 const handle = createWorkerHandler(workerData?.fault);
+// the frame and the encoder's buffers are allocated and faulted in while the main thread prepares
+// the lens
+if (workerData?.frame) prepareThread(workerData.frame.widthPx, workerData.frame.heightPx, workerData.frame.output);
 parentPort!.on('message', (msg) => {
   parentPort!.postMessage(handle(msg));
 });
