@@ -67,17 +67,21 @@ export function colourChunks(transfer: Transfer): Buffer[] {
 // fresh zeroed one per frame.
 let scanBuffer: Buffer | undefined;
 
+/** Bytes per pixel of the PNG samples: 3 or 4 channels of 1 or 2 bytes. */
+function bytesPerPixel(opts: PngOptions): number {
+  return (opts.alpha === 'none' ? 3 : 4) * (opts.bitDepth === 16 ? 2 : 1);
+}
+
 function reserveScanlines(size: number): void {
   if (!scanBuffer || scanBuffer.length < size) scanBuffer = Buffer.allocUnsafe(size);
 }
 
 /**
  * Allocate this thread's scanline buffer for frames of this size and format, and write every page
- * of it now (a render worker does this before its first frame; see prepareScratch).
+ * of it now (a render worker does this before its first frame; see prepareThread).
  */
 export function prepareScanlines(width: number, height: number, opts: PngOptions): void {
-  const bpp = (opts.alpha === 'none' ? 3 : 4) * (opts.bitDepth === 16 ? 2 : 1);
-  reserveScanlines((width * bpp + 1) * height);
+  reserveScanlines((width * bytesPerPixel(opts) + 1) * height);
   scanBuffer!.fill(0);
 }
 
@@ -145,7 +149,7 @@ function scanlines(img: FloatImage, opts: PngOptions): Buffer {
   const bytesPerSample = opts.bitDepth === 16 ? 2 : 1;
   const max = opts.bitDepth === 16 ? 65535 : 255;
   const q = quantiser(opts.transfer, max);
-  const bpp = channels * bytesPerSample;
+  const bpp = bytesPerPixel(opts);
   const rowBytes = img.width * bpp;
   const size = (rowBytes + 1) * img.height;
   reserveScanlines(size);
