@@ -12,30 +12,40 @@ import { spectralSamples } from './spectral.js';
 
 export const REFERENCE_NM = 550;
 
-/** In-place 2-D FFT of a complex n x n field (separate real and imaginary planes), unnormalised. */
+/**
+ * In-place 2-D FFT of a complex n x n field (separate real and imaginary planes), unnormalised.
+ * Rows that are zero throughout are left as they are (their transform is zero): a pupil fills only
+ * the middle eighth of the kernel's rows, so this skips most of the row pass.
+ */
 export function fft2(re: Float64Array, im: Float64Array, n: number): void {
   const f = new FFT(n);
   const input = f.createComplexArray() as number[];
   const output = f.createComplexArray() as number[];
-  const pass = (get: (k: number) => number, put: (k: number) => number) => {
-    for (let line = 0; line < n; line++) {
-      for (let k = 0; k < n; k++) {
-        const idx = get(line * n + k);
-        input[2 * k] = re[idx];
-        input[2 * k + 1] = im[idx];
-      }
-      f.transform(output, input);
-      for (let k = 0; k < n; k++) {
-        const idx = put(line * n + k);
-        re[idx] = output[2 * k];
-        im[idx] = output[2 * k + 1];
-      }
+  for (let row = 0, base = 0; row < n; row++, base += n) {
+    let zero = true;
+    for (let k = 0; k < n && zero; k++) zero = re[base + k] === 0 && im[base + k] === 0;
+    if (zero) continue;
+    for (let k = 0; k < n; k++) {
+      input[2 * k] = re[base + k];
+      input[2 * k + 1] = im[base + k];
     }
-  };
-  // rows: element (row, col) at row * n + col; columns: read column `line` as a row
-  pass((i) => i, (i) => i);
-  const col = (i: number) => (i % n) * n + Math.floor(i / n);
-  pass(col, col);
+    f.transform(output, input);
+    for (let k = 0; k < n; k++) {
+      re[base + k] = output[2 * k];
+      im[base + k] = output[2 * k + 1];
+    }
+  }
+  for (let col = 0; col < n; col++) {
+    for (let k = 0, i = col; k < n; k++, i += n) {
+      input[2 * k] = re[i];
+      input[2 * k + 1] = im[i];
+    }
+    f.transform(output, input);
+    for (let k = 0, i = col; k < n; k++, i += n) {
+      re[i] = output[2 * k];
+      im[i] = output[2 * k + 1];
+    }
+  }
 }
 
 /** The iris's open fraction in each cell of an n x n grid with a pupil `pupilCells` across. */
