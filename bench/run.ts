@@ -92,26 +92,39 @@ for (const quality of ['draft', 'low', 'medium', 'high'] as GhostQuality[]) {
 // --- the sequence renderer: frames per second with 1 and 2 workers, full flare at 1920x1080.
 // Each render runs in a fresh process, as `straylight render` does: run here, the 1-worker render
 // (which renders in the main thread) would start with the JIT already warmed by the rows above,
-// which no user's render has. The order is 1, 2, 2, 1 so a drift in the machine's speed over the
-// runs weighs on both counts alike; each count's figure is the mean of its two runs.
-// 48 frames, the demo's length: start-up (lens preparation, worker spawn, each worker's JIT warm-up
-// on its first frames) is part of the figure; the second half of the frames gives the steady rate.
+// which no user's render has. Each round runs 1, 2, 2, 1 so a drift in the machine's speed over the
+// round weighs on both counts alike; BENCH_ROUNDS rounds (default 2), each count's figure the mean
+// of its runs. 48 frames, the demo's length: start-up (lens preparation, worker spawn, each
+// worker's JIT warm-up on its first frames) is part of the figure; the second half of the frames
+// gives the steady rate. Beside each run: its CPU time (all threads) and the machine's steal time
+// (what the hypervisor took from our virtual CPUs), which separates a slow program from a busy host.
 const seqFrames = Number(process.env.BENCH_FRAMES ?? 48);
+const rounds = Math.max(1, Number(process.env.BENCH_ROUNDS ?? 2));
 const child = path.join(path.dirname(fileURLToPath(import.meta.url)), 'sequence-child.js');
 function sequenceRun(jobs: number, width: number, height: number, frames: number): SequenceRun {
   const out = execFileSync(process.execPath, [child, String(jobs), String(width), String(height), String(frames)], { encoding: 'utf8' });
   return JSON.parse(out.trim().split('\n').pop()!) as SequenceRun;
 }
-const seqRuns: SequenceRun[] = [1, 2, 2, 1].map((jobs) => sequenceRun(jobs, 1920, 1080, seqFrames));
 const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
-const of = (jobs: number) => seqRuns.filter((r) => r.jobs === jobs);
-const fps = { 1: mean(of(1).map((r) => r.fps)), 2: mean(of(2).map((r) => r.fps)) };
-const steady = { 1: mean(of(1).map((r) => r.steadyFps)), 2: mean(of(2).map((r) => r.steadyFps)) };
-const startup = of(2).flatMap((r) => r.startupMs);
-const runsOf = (jobs: number) => of(jobs).map((r) => r.fps.toFixed(2)).join(', ');
+const roundRuns: SequenceRun[][] = [];
+for (let r = 0; r < rounds; r++) roundRuns.push([1, 2, 2, 1].map((jobs) => sequenceRun(jobs, 1920, 1080, seqFrames)));
+const seqRuns = roundRuns.flat();
+const of = (runs: SequenceRun[], jobs: number) => runs.filter((r) => r.jobs === jobs);
+const fpsOf = (runs: SequenceRun[], jobs: number) => mean(of(runs, jobs).map((r) => r.fps));
+const fps = { 1: fpsOf(seqRuns, 1), 2: fpsOf(seqRuns, 2) };
+const steady = { 1: mean(of(seqRuns, 1).map((r) => r.steadyFps)), 2: mean(of(seqRuns, 2).map((r) => r.steadyFps)) };
+const startup = of(seqRuns, 2).flatMap((r) => r.startupMs);
+const runsOf = (jobs: number) => of(seqRuns, jobs).map((r) => r.fps.toFixed(2)).join(', ');
+const secs = (v: number) => `${(v / 1000).toFixed(1)} s`;
+const stealOf = (jobs: number) => of(seqRuns, jobs).map((r) => (r.stealMs === null ? '-' : secs(r.stealMs))).join(', ');
 rows.push([`sequence 1920x1080, double-gauss-50 + glow, ${seqFrames} frames, --jobs 1`, `${fps[1].toFixed(2)} fps (runs ${runsOf(1)}; second half ${steady[1].toFixed(2)} fps)`]);
 rows.push([`sequence 1920x1080, same, --jobs 2`, `${fps[2].toFixed(2)} fps (runs ${runsOf(2)}; second half ${steady[2].toFixed(2)} fps)`]);
-rows.push(['ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)', `${(fps[2] / fps[1]).toFixed(2)} (second half ${(steady[2] / steady[1]).toFixed(2)})`]);
+rows.push([
+  'ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)',
+  `${(fps[2] / fps[1]).toFixed(2)} (rounds ${roundRuns.map((rr) => (fpsOf(rr, 2) / fpsOf(rr, 1)).toFixed(2)).join(', ')}; second half ${(steady[2] / steady[1]).toFixed(2)})`,
+]);
+rows.push(['CPU time per render, jobs 1 vs jobs 2 (all threads)', `${secs(mean(of(seqRuns, 1).map((r) => r.cpuMs)))} vs ${secs(mean(of(seqRuns, 2).map((r) => r.cpuMs)))}`]);
+rows.push(['steal time during each render (jobs 1; jobs 2)', `${stealOf(1)}; ${stealOf(2)}`]);
 // what the machine allows: one full-frame pass (read-modify-write of a 1920x1080 RGBA float frame,
 // 33 MB, like the glow or the veil) timed on 1 thread and on 2 threads at once. A rendered frame
 // makes several such passes, so their slowdown bounds the ratio above from below the core count.
