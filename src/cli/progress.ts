@@ -1,4 +1,6 @@
 // Render progress on stderr: a live line on a terminal, a line per tenth of the work otherwise.
+// Frames kept from an earlier render (resume) count towards done but not towards the rate: the
+// frames per second and the ETA are those of the frames actually rendered.
 
 export interface ProgressSink {
   write(text: string): void;
@@ -8,6 +10,7 @@ export interface ProgressSink {
 export class Progress {
   private done = 0;
   private failed = 0;
+  private kept = 0;
   private readonly start = performance.now();
   private lastTenth = -1;
 
@@ -17,9 +20,10 @@ export class Progress {
     private readonly label: string,
   ) {}
 
-  frameDone(ok: boolean): void {
+  frameDone(kind: 'written' | 'skipped' | 'failed'): void {
     this.done++;
-    if (!ok) this.failed++;
+    if (kind === 'failed') this.failed++;
+    if (kind === 'skipped') this.kept++;
     const line = this.line();
     if (this.sink.isTTY) {
       this.sink.write(`\r\x1b[2K${line}`);
@@ -34,11 +38,12 @@ export class Progress {
 
   line(): string {
     const secs = (performance.now() - this.start) / 1000;
-    const fps = secs > 0 ? this.done / secs : 0;
+    const fps = renderRate(this.done - this.kept, secs);
     const left = this.total - this.done;
-    const eta = fps > 0 ? formatDuration(left / fps) : '--';
+    const eta = left === 0 ? '0s' : fps > 0 ? formatDuration(left / fps) : '--';
+    const kept = this.kept ? `, ${this.kept} kept` : '';
     const failed = this.failed ? `, ${this.failed} failed` : '';
-    return `${this.label}: ${this.done}/${this.total} frames${failed}, ${fps.toFixed(2)} fps, ETA ${eta}`;
+    return `${this.label}: ${this.done}/${this.total} frames${kept}${failed}, ${fps.toFixed(2)} fps, ETA ${eta}`;
   }
 
   finish(): void {
@@ -48,6 +53,11 @@ export class Progress {
   elapsedSeconds(): number {
     return (performance.now() - this.start) / 1000;
   }
+}
+
+/** Frames per second of the frames rendered (written or failed) so far; 0 before the first. */
+export function renderRate(rendered: number, seconds: number): number {
+  return rendered > 0 && seconds > 0 ? rendered / seconds : 0;
 }
 
 export function formatDuration(seconds: number): string {

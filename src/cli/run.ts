@@ -35,7 +35,7 @@ import { fileURLToPath } from 'node:url';
 import { formatVerify, sequencesIn, verifySequence, type VerifyReport } from '../render/verify.js';
 import { shotHash } from '../io/manifest.js';
 import { statSync } from 'node:fs';
-import { Progress } from './progress.js';
+import { Progress, renderRate } from './progress.js';
 import { VERSION } from '../version.js';
 import { contactSheet } from '../review/sheet.js';
 import { findFfmpeg, movieKind, writeMovie } from '../review/movie.js';
@@ -135,6 +135,7 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
       const progress = opts.quiet || json ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
       const started = performance.now();
       let count = 0;
+      let kept = 0;
       const emit = (o: object) => io.stderr(`${JSON.stringify(o)}\n`);
       // every render screens what it makes for flashing (photosensitive seizure risk); a share of a
       // sharded render sees every Nth frame only, so the whole is screened after (see `farm`)
@@ -156,13 +157,14 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
           onCells: sequences.length === 1 && !sharded ? (f, cells) => analyser.addCells(f, cells) : undefined,
           onFrame: (e) => {
             count++;
+            if (e.kind === 'skipped') kept++;
             if (json) {
               const secs = (performance.now() - started) / 1000;
-              emit({ event: e.kind, frame: e.frame, ...(sequences.length > 1 ? { pass: seq.name } : {}), done: count, total, fps: Number((count / Math.max(secs, 1e-6)).toFixed(3)), ...(e.kind === 'failed' ? { error: e.error } : {}) });
+              emit({ event: e.kind, frame: e.frame, ...(sequences.length > 1 ? { pass: seq.name } : {}), done: count, total, fps: Number(renderRate(count - kept, secs).toFixed(3)), ...(e.kind === 'failed' ? { error: e.error } : {}) });
             } else if (e.kind === 'failed') {
               io.stderr(`${progress && io.stderrIsTTY ? '\n' : ''}frame ${e.frame}${sequences.length > 1 ? ` (${seq.name} pass)` : ''} failed: ${e.error}\n`);
             }
-            progress?.frameDone(e.kind !== 'failed');
+            progress?.frameDone(e.kind);
           },
         });
         result.written.push(...r.written);
@@ -184,9 +186,10 @@ export function buildProgram(io: CliIO, setExit: (code: number) => void): Comman
         io.stderr(`${result.failed.length} of ${total} frames failed (${result.failed.map((f) => f.frame).join(', ')}); the other ${result.written.length + result.skipped.length} are in place\n`);
         setExit(ExitCode.framesFailed);
       } else if (progress) {
-          const kept = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
+        const keptNote = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
         const where = sequences.length > 1 ? `${sequences.length} passes (${sequences.map((q) => q.name).join(', ')}) beside ${dest}` : dest;
-        io.stderr(`rendered ${result.written.length} frames to ${where}${kept} in ${seconds.toFixed(1)} s\n`);
+        const n = result.written.length;
+        io.stderr(`rendered ${n} frame${n === 1 ? '' : 's'} to ${where}${keptNote} in ${seconds.toFixed(1)} s\n`);
       }
       if (!result.interrupted && sharded) {
         if (!opts.quiet) io.stderr(`flash screening needs every frame in order: run straylight flashes ${shotFile} when all shards are done\n`);

@@ -1,6 +1,6 @@
 // The CLI driven in-process: exit codes, messages, and stdout kept for results only.
 
-import { existsSync, writeFileSync } from 'node:fs';
+import { existsSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { decode } from 'fast-png';
 import { readFileSync } from 'node:fs';
@@ -81,6 +81,25 @@ describe('straylight CLI', () => {
     expect(r.stdout).toBe('');
     expect(r.stderr).toMatch(/render: 2\/2 frames, [\d.]+ fps, ETA 0s\n/);
     expect(r.stderr).toMatch(/rendered 2 frames to .*f\.####\.png in [\d.]+ s\n$/);
+  });
+
+  it('a resumed render counts kept frames apart: its rate and ETA are those of the frames it renders', async () => {
+    const f = shotFile();
+    expect((await cli(['render', f, '--quiet'])).code).toBe(0);
+    rmSync(path.join(path.dirname(f), 'out', 'f.0002.png'));
+    const r = await cli(['render', f]);
+    expect(r.code).toBe(0);
+    // frames 1 and 3 are kept at once, before anything renders: no rate yet, so no ETA
+    expect(r.stderr).toContain('render: 1/3 frames, 1 kept, 0.00 fps, ETA --\nrender: 2/3 frames, 2 kept, 0.00 fps, ETA --\n');
+    expect(r.stderr).toMatch(/render: 3\/3 frames, 2 kept, [\d.]+ fps, ETA 0s\n/);
+    expect(r.stderr).toMatch(/rendered 1 frame to .*f\.####\.png \(2 already there, kept\) in [\d.]+ s\n$/);
+    rmSync(path.join(path.dirname(f), 'out', 'f.0003.png'));
+    const j = await cli(['render', f, '--progress', 'json']);
+    const events = j.stderr.trim().split('\n').map((l) => JSON.parse(l) as { event: string; fps?: number });
+    expect(events.map((e) => e.event)).toEqual(['skipped', 'skipped', 'written', 'summary']);
+    expect(events[0].fps).toBe(0);
+    expect(events[1].fps).toBe(0);
+    expect(events[2].fps).toBeGreaterThan(0);
   });
 
   it('--out rejects a template without a frame number', async () => {
