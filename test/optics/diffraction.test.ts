@@ -8,13 +8,18 @@
 import { describe, expect, it } from 'vitest';
 import { fft2, irisMask, powerSpectrum, starburstKernel, binSizeMm } from '../../src/optics/diffraction.js';
 
+/** Reproducible values in [-0.5, 0.5) (Park-Miller minimal standard generator). */
+function uniform(seed: number): () => number {
+  let s = seed;
+  return () => ((s = (s * 16807) % 2147483647) / 2147483647) - 0.5;
+}
+
 describe('diffraction', () => {
   it('Parseval: sum |F|^2 = N^2 sum |P|^2 for the unnormalised FFT (exact)', () => {
     const n = 64;
     const re = new Float64Array(n * n);
     const im = new Float64Array(n * n);
-    let s = 12345;
-    const rnd = () => ((s = (s * 16807) % 2147483647) / 2147483647) - 0.5;
+    const rnd = uniform(12345);
     for (let i = 0; i < n * n; i++) {
       re[i] = rnd();
       im[i] = rnd();
@@ -30,8 +35,7 @@ describe('diffraction', () => {
     const n = 16;
     const re = new Float64Array(n * n);
     const im = new Float64Array(n * n);
-    let s = 777;
-    const rnd = () => ((s = (s * 16807) % 2147483647) / 2147483647) - 0.5;
+    const rnd = uniform(777);
     // rows 5-8 carry values; row 7 only an imaginary part, so a skip test on re alone would fail
     for (let y = 5; y <= 8; y++) for (let x = 0; x < n; x++) {
       re[y * n + x] = y === 7 ? 0 : rnd();
