@@ -1,0 +1,97 @@
+// `straylight batch`: many shots rendered one after another, going on past failures, with a JSON
+// report and an HTML page (thumbnails, flash warnings).
+
+import path from 'node:path';
+import { availableParallelism } from 'node:os';
+import { existsSync } from 'node:fs';
+import { Option, type Command } from 'commander';
+import { ExitCode, StraylightError, UsageError } from '../../errors.js';
+import { writeFileAtomic } from '../../io/atomic-write.js';
+import { loadShot } from '../../io/load-shot.js';
+import { encodePng } from '../../io/png.js';
+import { readFrameLinear } from '../../io/read-frame.js';
+import { expandFramePath } from '../../io/frame-path.js';
+import { FloatImage } from '../../raster/image.js';
+import { renderSequence } from '../../render/sequence.js';
+import { outputSequences } from '../../render/passes.js';
+import { batchHtml, type BatchReport, type BatchShot } from '../../render/batch-report.js';
+import { VERSION } from '../../version.js';
+import type { CommandContext } from '../context.js';
+import { positiveInt } from '../options.js';
+import { screenSequences } from '../sequences.js';
+
+export function registerBatch(program: Command, { io, setExit }: CommandContext): void {
+  program
+    .command('batch')
+    .description('render many shots, going on past failures, and write a report (JSON and an HTML page)')
+    .argument('<shots...>', 'shot files')
+    .option('--report <file.json>', 'where to write the report; the HTML page goes beside it', 'straylight-report.json')
+    .addOption(new Option('--jobs <n>', 'worker threads per shot (default: the available parallelism)').argParser(positiveInt('--jobs')))
+    .option('--force', 'render every frame, even those already there')
+    .option('--quiet', 'print nothing but errors and safety warnings')
+    .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean }) => {
+      if (!opts.report.endsWith('.json')) throw new UsageError(`--report: the file must end in .json, found "${opts.report}"`);
+      const report: BatchReport = { tool: `straylight ${VERSION}`, started: new Date().toISOString(), finished: '', shots: [] };
+      for (const file of shots) {
+        if (io.signal?.aborted) break;
+        const started = performance.now();
+        const entry: BatchShot = { shot: file, status: 'ok', frames: 0, written: 0, skipped: 0, failed: [], seconds: 0, flashes: [], warnings: [] };
+        report.shots.push(entry);
+        try {
+          const shot = loadShot(file);
+          entry.output = shot.output.template;
+          entry.frames = shot.frame.last - shot.frame.first + 1;
+          const sequences = outputSequences(shot);
+          entry.frames *= sequences.length;
+          let interrupted = false;
+          for (const seq of sequences) {
+            const result = await renderSequence(seq.shot, { jobs: opts.jobs ?? availableParallelism(), force: opts.force, signal: io.signal });
+            entry.written += result.written.length;
+            entry.skipped += result.skipped.length;
+            entry.failed.push(...result.failed);
+            interrupted ||= result.interrupted;
+          }
+          entry.status = interrupted ? 'interrupted' : entry.failed.length ? 'frames-failed' : 'ok';
+          // screen the whole sequence as it is on disk now (kept frames included), passes summed
+          if (entry.status === 'ok') {
+            entry.flashes = screenSequences(sequences.map((q) => q.shot.output.template), { first: shot.frame.first, last: shot.frame.last }, shot).report().spans;
+          }
+          const mid = Math.round((shot.frame.first + shot.frame.last) / 2);
+          const thumbFile = expandFramePath(shot.output.template, mid);
+          if (existsSync(thumbFile)) entry.thumbnail = thumbnail(thumbFile);
+          if (!opts.quiet) io.stderr(`${file}: ${entry.status}, ${entry.written} rendered, ${entry.skipped} kept, ${entry.failed.length} failed\n`);
+          if (entry.flashes.length) io.stderr(`WARNING: ${file} may flash dangerously for viewers with photosensitive epilepsy (frames ${entry.flashes.map((s) => `${s.firstFrame}-${s.lastFrame}`).join(', ')})\n`);
+        } catch (e) {
+          entry.status = 'bad-input';
+          entry.error = e instanceof StraylightError ? e.message : (e as Error).stack ?? String(e);
+          io.stderr(`${file}: not rendered:\n${entry.error}\n`);
+        }
+        entry.seconds = (performance.now() - started) / 1000;
+      }
+      report.finished = new Date().toISOString();
+      const json = path.resolve(opts.report);
+      writeFileAtomic(json, Buffer.from(`${JSON.stringify(report, null, 2)}\n`));
+      writeFileAtomic(json.replace(/\.json$/, '.html'), Buffer.from(batchHtml(report)));
+      const bad = report.shots.filter((s) => s.status !== 'ok').length;
+      if (!opts.quiet) io.stderr(`batch: ${report.shots.length - bad} of ${report.shots.length} shots rendered; report in ${json} and ${json.replace(/\.json$/, '.html')}\n`);
+      if (io.signal?.aborted) setExit(ExitCode.interrupted);
+      else if (bad) setExit(ExitCode.framesFailed);
+    });
+}
+
+/** A small sRGB PNG of a rendered frame, as a data URI (nearest-pixel reduction to 320 wide). */
+function thumbnail(file: string): string {
+  const f = readFrameLinear(file);
+  const w = Math.min(320, f.width);
+  const h = Math.max(1, Math.round((f.height * w) / f.width));
+  const img = new FloatImage(w, h);
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      const sx = Math.floor(((x + 0.5) * f.width) / w);
+      const sy = Math.floor(((y + 0.5) * f.height) / h);
+      const i = (sy * f.width + sx) * 3;
+      img.data.set([f.rgb[i], f.rgb[i + 1], f.rgb[i + 2], 0], (y * w + x) * 4);
+    }
+  }
+  return `data:image/png;base64,${encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }).toString('base64')}`;
+}

@@ -1,0 +1,32 @@
+// `straylight sheet`: a contact sheet of a rendered sequence, every Nth frame, numbered.
+
+import path from 'node:path';
+import { Option, type Command } from 'commander';
+import { writeFileAtomic } from '../../io/atomic-write.js';
+import { encodePng } from '../../io/png.js';
+import { contactSheet } from '../../review/sheet.js';
+import { checkPlateTemplate, openSource } from '../../review/source.js';
+import type { CommandContext } from '../context.js';
+import { positiveInt, requireExtension } from '../options.js';
+
+export function registerSheet(program: Command, { io }: CommandContext): void {
+  program
+    .command('sheet')
+    .description('make a contact sheet of a rendered sequence: every Nth frame, frame numbers printed')
+    .argument('<shot-or-sequence>', 'a shot file (its rendered output) or a frame template such as render/x.####.png')
+    .requiredOption('-o, --out <file.png>', 'the sheet to write (8-bit sRGB PNG)')
+    .addOption(new Option('--every <n>', 'one tile every N frames (default: at most 24 tiles)').argParser(positiveInt('--every')))
+    .addOption(new Option('--columns <n>', 'tiles a row').default(6).argParser(positiveInt('--columns')))
+    .addOption(new Option('--tile-width <px>', 'tile width in pixels').default(320).argParser(positiveInt('--tile-width')))
+    .option('--over <plate>', 'show the pass added over this background plate sequence (linear light)')
+    .option('--rate <fps>', 'frame rate of a sequence given by template (default 24)')
+    .action((arg: string, opts: { out: string; every?: number; columns: number; tileWidth: number; over?: string; rate?: string }) => {
+      requireExtension('--out', opts.out, ['.png'], 'the sheet is a PNG; the file');
+      checkPlateTemplate(opts.over);
+      const src = openSource(arg, opts.rate);
+      const every = opts.every ?? Math.max(1, Math.ceil(src.frames.length / 24));
+      const { image, frames } = contactSheet(src, { every, columns: opts.columns, tileWidth: opts.tileWidth, over: opts.over });
+      writeFileAtomic(path.resolve(opts.out), encodePng(image, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+      io.stdout(`${opts.out}: ${frames.length} frames (${frames[0]}-${frames[frames.length - 1]}, every ${every}), ${image.width}x${image.height}\n`);
+    });
+}
