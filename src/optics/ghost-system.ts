@@ -12,7 +12,7 @@ export type GhostQuality = 'draft' | 'low' | 'medium' | 'high';
 
 /**
  * Ray grid cells per side and wavelength samples for each quality, and for faint ghosts (see
- * FAINT_PEAK in elements/ghosts.ts) the lighter grid and wavelength count used below `high`.
+ * FAINT_PEAK in elements/ghosts/lod.ts) the lighter grid and wavelength count used below `high`.
  */
 export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number; faintGrid: number; faintWavelengths: number }>> = {
   draft: { grid: 12, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },

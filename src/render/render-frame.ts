@@ -3,7 +3,7 @@
 // Per-shot precomputation (the prepared lens) is built once and cached on the shot object.
 
 import { addDisk, diskFlux } from '../elements/core.js';
-import { addGhosts, type GhostStats } from '../elements/ghosts.js';
+import { addGhosts, type GhostStats } from '../elements/ghosts/index.js';
 import { addGlow } from '../elements/glow.js';
 import { addStarburst } from '../elements/starburst.js';
 import { addStreak, addVeil } from '../elements/streak.js';
