@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { flareShot, type SequenceRun } from './sequence-child.js';
-import { addGhosts } from '../src/elements/ghosts.js';
+import { addGhosts } from '../src/elements/ghosts/index.js';
 import { encodePng } from '../src/io/png.js';
 import { presetPath } from '../src/io/presets.js';
 import { prepareLens, type GhostQuality } from '../src/optics/ghost-system.js';
@@ -208,7 +208,7 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
 // --- OpenEXR: half ZIP writing next to 16-bit PNG, and reading mattes back (PIZ and ZIP)
 {
   const { encodeExr } = await import('../src/io/exr.js');
-  const { decodeExr } = await import('../src/io/exr-read.js');
+  const { decodeExr } = await import('../src/format/exr-read.js');
   for (const [w, h] of [[1920, 1080], [3840, 2160]]) {
     const frame = renderFrame(glowShot(w, h), 1);
     const runs = w > 2000 ? 3 : RUNS;

@@ -7,7 +7,7 @@
 // few minutes. That is the check for changes to how ghosts are fitted or drawn.
 
 import { readFileSync } from 'node:fs';
-import { addGhosts, type GhostView } from '../src/elements/ghosts.js';
+import { addGhosts, type GhostView } from '../src/elements/ghosts/index.js';
 import { presetPath } from '../src/io/presets.js';
 import { prepareLens } from '../src/optics/ghost-system.js';
 import { FloatImage } from '../src/raster/image.js';

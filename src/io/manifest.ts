@@ -12,7 +12,7 @@ import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import type { ResolvedShot } from '../shot/types.js';
 import { writeFileAtomic } from './atomic-write.js';
-import { expandFramePath, parseFrameTemplate } from './frame-path.js';
+import { expandFramePath, parseFrameTemplate } from '../format/frame-path.js';
 import { framesOnDisk } from './read-frame.js';
 import { VERSION } from '../version.js';
 

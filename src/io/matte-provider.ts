@@ -3,9 +3,10 @@
 // share matte frames).
 
 import { InputError } from '../errors.js';
-import { decodeMatte, type MatteImage } from '../occlusion/matte.js';
+import type { MatteImage } from '../occlusion/matte.js';
+import { decodeMatte } from './matte-read.js';
 import type { ResolvedMatte, ResolvedShot } from '../shot/types.js';
-import { expandFramePath } from './frame-path.js';
+import { expandFramePath } from '../format/frame-path.js';
 import { framesOnDisk } from './read-frame.js';
 
 const CACHE = 8;

@@ -8,8 +8,8 @@ import path from 'node:path';
 import pngjs from 'pngjs';
 import { srgbDecode } from '../colour/srgb.js';
 import { InputError } from '../errors.js';
-import { decodeExr, ExrFormatError } from './exr-read.js';
-import { parseFrameTemplate, framePath } from './frame-path.js';
+import { decodeExr, ExrFormatError } from '../format/exr-read.js';
+import { parseFrameTemplate, framePath } from '../format/frame-path.js';
 
 const { PNG } = pngjs;
 

@@ -2,7 +2,7 @@
 // pass is the shot with only its element on, written beside the combined name (x.glow.####.png),
 // so resuming, shards, manifests and verify work per pass exactly as for one sequence.
 
-import { parseFrameTemplate } from '../io/frame-path.js';
+import { parseFrameTemplate } from '../format/frame-path.js';
 import { adoptShotAssets, shotAssets } from './render-frame.js';
 import type { ElementName, ResolvedShot } from '../shot/types.js';
 

@@ -7,7 +7,7 @@ import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { OutputError } from '../errors.js';
 import { ensureDir } from '../io/ensure-dir.js';
-import { expandFramePath } from '../io/frame-path.js';
+import { expandFramePath } from '../format/frame-path.js';
 import { TOOL_VERSION, manifestPath, readManifests, shotHash, writeManifest, type Manifest, type Shard } from '../io/manifest.js';
 import type { FlashCells } from '../safety/flash.js';
 import type { ResolvedShot } from '../shot/types.js';

@@ -4,7 +4,7 @@
 import { existsSync, readdirSync } from 'node:fs';
 import path from 'node:path';
 import { readManifests, type ManifestFrame } from '../io/manifest.js';
-import { expandFramePath } from '../io/frame-path.js';
+import { expandFramePath } from '../format/frame-path.js';
 import { fileMatches } from './sequence.js';
 
 export interface VerifyReport {

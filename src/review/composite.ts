@@ -3,7 +3,7 @@
 // written atomically (a temporary name, then renamed).
 
 import { writeFileAtomic } from '../io/atomic-write.js';
-import { expandFramePath } from '../io/frame-path.js';
+import { expandFramePath } from '../format/frame-path.js';
 import { encodePng } from '../io/png.js';
 import { FloatImage } from '../raster/image.js';
 import { OutputError } from '../errors.js';

@@ -14,7 +14,7 @@ import { OutputError, ToolMissingError, UsageError } from '../errors.js';
 import { passAlpha } from '../io/png.js';
 import { quantiser } from '../io/quantise.js';
 import { framesToTimecode } from '../timeline/timecode.js';
-import { expandFramePath } from '../io/frame-path.js';
+import { expandFramePath } from '../format/frame-path.js';
 import { writeCompositeFrame } from './composite.js';
 import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
 

@@ -5,7 +5,7 @@
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { InputError, UsageError } from '../errors.js';
-import { expandFramePath, parseFrameTemplate } from '../io/frame-path.js';
+import { expandFramePath, parseFrameTemplate } from '../format/frame-path.js';
 import { loadShot } from '../io/load-shot.js';
 import { framesOnDisk, readFrameLinear, type LinearFrame } from '../io/read-frame.js';
 import { outputSequences } from '../render/passes.js';

@@ -10,7 +10,7 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeExr } from '../../src/io/exr-read.js';
+import { decodeExr } from '../../src/format/exr-read.js';
 import { cli, tempDir } from '../helpers.js';
 
 function oiio(cmd: string, args: string[]): string {

@@ -4,7 +4,7 @@
 
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { addGhosts, type GhostView } from '../../src/elements/ghosts.js';
+import { addGhosts, type GhostView } from '../../src/elements/ghosts/index.js';
 import { prepareLens, type LensSystem } from '../../src/optics/ghost-system.js';
 import { irisArea, irisShape } from '../../src/optics/iris.js';
 import { ghostPairs, indexAfter, indexBefore } from '../../src/optics/lens.js';

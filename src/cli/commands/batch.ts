@@ -10,7 +10,7 @@ import { writeFileAtomic } from '../../io/atomic-write.js';
 import { loadShot } from '../../io/load-shot.js';
 import { encodePng } from '../../io/png.js';
 import { readFrameLinear } from '../../io/read-frame.js';
-import { expandFramePath } from '../../io/frame-path.js';
+import { expandFramePath } from '../../format/frame-path.js';
 import { FloatImage } from '../../raster/image.js';
 import { renderSequence } from '../../render/sequence.js';
 import { outputSequences } from '../../render/passes.js';

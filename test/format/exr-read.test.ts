@@ -7,7 +7,7 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeExr, HALF_TO_FLOAT } from '../../src/io/exr-read.js';
+import { decodeExr, HALF_TO_FLOAT } from '../../src/format/exr-read.js';
 import { tempDir } from '../helpers.js';
 
 function oiiotool(args: string[]): void {
