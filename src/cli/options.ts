@@ -7,15 +7,15 @@ import type { Shard } from '../io/manifest.js';
 import type { FrameRange } from '../render/sequence.js';
 import type { ResolvedShot } from '../shot/types.js';
 
-/** Parse "A-B" or "A" (negative numbers allowed: "-5--1"). */
-export function parseFrameRange(text: string, shot: ResolvedShot): FrameRange {
+/** Parse "A-B" or "A" (negative numbers allowed: "-5--1"), inside the shot's range. */
+export function parseFrameRange(text: string, shot: ResolvedShot, flag = '--frames'): FrameRange {
   const m = /^\s*(-?\d+)\s*(?:-\s*(-?\d+))?\s*$/.exec(text);
-  if (!m) throw new UsageError(`--frames: expected A-B or A (e.g. 1001-1010), found "${text}"`);
+  if (!m) throw new UsageError(`${flag}: expected A-B or A (e.g. 1001-1010), found "${text}"`);
   const first = Number(m[1]);
   const last = m[2] === undefined ? first : Number(m[2]);
-  if (last < first) throw new UsageError(`--frames: the range ${text} runs backwards`);
+  if (last < first) throw new UsageError(`${flag}: the range ${text} runs backwards`);
   const { first: sf, last: sl } = shot.frame;
-  if (first < sf || last > sl) throw new UsageError(`--frames: ${first}-${last} lies outside the shot's range ${sf}-${sl}`);
+  if (first < sf || last > sl) throw new UsageError(`${flag}: ${first === last ? first : `${first}-${last}`} lies outside the shot's range ${sf}-${sl}`);
   return { first, last };
 }
 

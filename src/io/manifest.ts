@@ -1,14 +1,18 @@
 // The sequence manifest: JSON beside the frames recording what made them and what they hold.
 //
 // shotHash is a SHA-256 of everything that decides a frame's bytes: the resolved shot without the
-// things that only name or range the files (the shot file's path, the output path template, the
-// frame range, timecode), plus straylight's version and the matte files' names, sizes and times.
-// Any other change (a key, a light, the lens, a flare setting, the output format, a matte file)
-// changes the hash, and every frame is rendered again.
-// Each shard of a farm render writes a manifest of its own, so no two processes share one file.
+// things that only name, place or range the files (the shot file's path and the source locations
+// inside it, the output path template, the folders of mattes and lens files, the lens's name and
+// note, the frame range, timecode), plus straylight's version and the matte files' names, sizes
+// and times. So copying, renaming, re-indenting or commenting a shot keeps the hash; any other
+// change (a key, a light, the lens, a flare setting, the output format, a matte file) changes it,
+// and every frame is rendered again. Records of an older hash stay until their frame is rendered
+// again (a frame record carries its own hash when it differs from the manifest's).
+// Each shard of a farm render writes a manifest of its own; processes sharing one (disjoint
+// --frames into one folder) merge their records under a lock file.
 
 import { createHash } from 'node:crypto';
-import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
+import { closeSync, existsSync, openSync, readdirSync, readFileSync, rmSync, statSync, writeSync } from 'node:fs';
 import path from 'node:path';
 import type { ResolvedShot } from '../shot/types.js';
 import { writeFileAtomic } from './atomic-write.js';
@@ -27,6 +31,8 @@ export interface Shard {
 export interface ManifestFrame {
   size: number;
   sha256: string;
+  /** the shot hash of the render that wrote it, when it is not the manifest's own */
+  shotHash?: string;
 }
 
 export interface Manifest {
@@ -40,6 +46,11 @@ export interface Manifest {
   last: number;
   shard?: Shard;
   frames: Record<string, ManifestFrame>;
+  /**
+   * frames a render has set out to write and not yet recorded: a file under such a frame's name is
+   * one of ours that a killed render left (whole, since frames are renamed into place)
+   */
+  pending?: number[];
 }
 
 /** Stable JSON: object keys sorted, so the hash does not depend on key order. */
@@ -71,7 +82,7 @@ export function mattesFingerprint(shot: ResolvedShot): string[] {
 }
 
 export function shotHash(shot: ResolvedShot): string {
-  const { file: _file, output, frame, ...rest } = shot;
+  const { file: _file, output, frame, mattes, lens, ...rest } = shot;
   const { template: _t, ...outputRest } = output;
   const { first: _f, last: _l, timecodeStartFrames: _tc, dropFrame: _df, ...frameRest } = frame;
   void _file;
@@ -80,9 +91,18 @@ export function shotHash(shot: ResolvedShot): string {
   void _l;
   void _tc;
   void _df;
+  // where a matte was named in the shot, and the folder its files are in, do not change a pixel
+  // (the files themselves are in the fingerprint); nor do a lens file's path, name and note
+  const matteKeys = mattes.map(({ at: _at, atPath: _ap, template, ...m }) => ({ ...m, file: path.basename(template) }));
+  const lensKey = lens ? { fNumber: lens.fNumber, model: { ...lens.model, name: '', note: '' } } : undefined;
   return createHash('sha256')
-    .update(canonical({ tool: TOOL_VERSION, ...rest, output: outputRest, frame: frameRest, matteFiles: mattesFingerprint(shot) }))
+    .update(canonical({ tool: TOOL_VERSION, ...rest, lens: lensKey, mattes: matteKeys, output: outputRest, frame: frameRest, matteFiles: mattesFingerprint(shot) }))
     .digest('hex');
+}
+
+/** The shot hash a frame record belongs to. */
+export function recordHash(m: Manifest, rec: ManifestFrame): string {
+  return rec.shotHash ?? m.shotHash;
 }
 
 /** Base name of a sequence: the template's file name without its frame number and extension. */
@@ -98,19 +118,25 @@ export function manifestPath(template: string, shard?: Shard): string {
   return path.join(path.dirname(template), `${sequenceName(template)}.manifest${tag}.json`);
 }
 
-/** Every manifest of this sequence in its folder (the whole render and each shard's). */
-export function readManifests(template: string): { file: string; manifest: Manifest }[] {
+/**
+ * Every manifest of this sequence in its folder (the whole render and each shard's). A manifest
+ * that cannot be read is left out (its frames get checked or rendered again) and named in
+ * `unreadable` when given.
+ */
+export function readManifests(template: string, unreadable?: string[]): { file: string; manifest: Manifest }[] {
   const dir = path.dirname(template);
   if (!existsSync(dir)) return [];
   const name = sequenceName(template);
   const re = new RegExp(`^${name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}\\.manifest(\\.shard-\\d+-of-\\d+)?\\.json$`);
   const out: { file: string; manifest: Manifest }[] = [];
   for (const f of readdirSync(dir).filter((n) => re.test(n)).sort()) {
+    const file = path.join(dir, f);
     try {
-      const m = JSON.parse(readFileSync(path.join(dir, f), 'utf8')) as Manifest;
-      if (m.version === 1 && m.frames && typeof m.shotHash === 'string') out.push({ file: path.join(dir, f), manifest: m });
+      const m = JSON.parse(readFileSync(file, 'utf8')) as Manifest;
+      if (m.version === 1 && m.frames && typeof m.frames === 'object' && typeof m.shotHash === 'string') out.push({ file, manifest: m });
+      else unreadable?.push(file);
     } catch {
-      // an unreadable manifest is as good as none: its frames get checked or rendered again
+      unreadable?.push(file);
     }
   }
   return out;
@@ -118,4 +144,90 @@ export function readManifests(template: string): { file: string; manifest: Manif
 
 export function writeManifest(file: string, m: Manifest): void {
   writeFileAtomic(file, Buffer.from(`${JSON.stringify(m, null, 1)}\n`));
+}
+
+/** How long a manifest lock may be held before another process takes it over, ms. */
+const STALE_LOCK_MS = 60_000;
+const sleeper = new Int32Array(new SharedArrayBuffer(4));
+
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/**
+ * Run `fn` holding the manifest's lock file (created exclusively beside it; a lock whose process is
+ * gone, or older than a minute, is taken over). Held only for a read-merge-write, so processes
+ * sharing a manifest wait milliseconds for each other.
+ */
+export function withManifestLock<T>(manifestFile: string, fn: () => T, timeoutMs = 20_000): T {
+  const lock = path.join(path.dirname(manifestFile), `.${path.basename(manifestFile)}.lock`);
+  const start = Date.now();
+  let fd: number | undefined;
+  for (;;) {
+    try {
+      fd = openSync(lock, 'wx');
+      writeSync(fd, String(process.pid));
+      break;
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+      let stale = false;
+      try {
+        const pid = Number(readFileSync(lock, 'utf8'));
+        stale = (Number.isInteger(pid) && pid > 0 && !alive(pid)) || Date.now() - statSync(lock).mtimeMs > STALE_LOCK_MS;
+      } catch {
+        // the holder removed it meanwhile (or wrote nothing yet): try again
+      }
+      if (stale) rmSync(lock, { force: true });
+      else if (Date.now() - start > timeoutMs) throw Object.assign(new Error(`${lock} is held by another render`), { code: 'ELOCKED' });
+      else Atomics.wait(sleeper, 0, 0, 5);
+    }
+  }
+  try {
+    return fn();
+  } finally {
+    closeSync(fd);
+    rmSync(lock, { force: true });
+  }
+}
+
+/**
+ * Hidden temporary files a write left behind in the sequence's folder (a killed process's
+ * half-written frame or manifest), with the process that wrote each: `.NAME.PID.N.tmp`.
+ */
+export function strayTempFiles(template: string): { file: string; pid: number; mtimeMs: number }[] {
+  const dir = path.dirname(template);
+  if (!existsSync(dir)) return [];
+  const t = parseFrameTemplate(path.basename(template));
+  if (typeof t === 'string') return [];
+  const esc = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+  const frameRe = new RegExp(`^${esc(t.prefix)}-?\\d+${esc(t.suffix)}$`);
+  const manifestRe = new RegExp(`^${esc(sequenceName(template))}\\.manifest(\\.shard-\\d+-of-\\d+)?\\.json$`);
+  const out: { file: string; pid: number; mtimeMs: number }[] = [];
+  for (const name of readdirSync(dir)) {
+    const m = /^\.(.+)\.(\d+)\.(\d+)\.tmp$/.exec(name);
+    if (!m || !(frameRe.test(m[1]) || manifestRe.test(m[1]))) continue;
+    const file = path.join(dir, name);
+    try {
+      out.push({ file, pid: Number(m[2]), mtimeMs: statSync(file).mtimeMs });
+    } catch {
+      // gone meanwhile
+    }
+  }
+  return out.sort((a, b) => (a.file < b.file ? -1 : 1));
+}
+
+/** Remove the stray temporary files of processes that are gone; returns how many were removed. */
+export function cleanStrayTempFiles(template: string): number {
+  let n = 0;
+  for (const s of strayTempFiles(template)) {
+    if (s.pid === process.pid || alive(s.pid)) continue;
+    rmSync(s.file, { force: true });
+    n++;
+  }
+  return n;
 }

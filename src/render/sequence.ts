@@ -5,10 +5,10 @@
 
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
-import { OutputError } from '../errors.js';
-import { ensureDir } from '../io/ensure-dir.js';
+import { InputError, OutputError } from '../errors.js';
+import { checkWritableFolder, whyNotWritable } from '../io/output-file.js';
 import { expandFramePath } from '../format/frame-path.js';
-import { TOOL_VERSION, manifestPath, readManifests, shotHash, writeManifest, type Manifest, type Shard } from '../io/manifest.js';
+import { TOOL_VERSION, cleanStrayTempFiles, manifestPath, readManifests, recordHash, shotHash, withManifestLock, writeManifest, type Manifest, type ManifestFrame, type Shard } from '../io/manifest.js';
 import type { FlashCells } from '../safety/flash.js';
 import type { ResolvedShot } from '../shot/types.js';
 import { runFrameJob, sha256, type FrameDone, type FrameJob } from './frame-job.js';
@@ -29,7 +29,10 @@ export interface SequenceOptions {
   shard?: Shard;
   /** worker threads; 1 renders in this thread */
   jobs?: number;
-  /** render every frame even if the manifest says it is already there */
+  /**
+   * render every frame even if the manifest says it is already there, and replace files under the
+   * frames' names that no manifest of this sequence records (without it those stop the render)
+   */
   force?: boolean;
   signal?: AbortSignal;
   onFrame?: (event: FrameEvent) => void;
@@ -52,7 +55,12 @@ export interface SequenceResult {
   manifest: string;
   /** worker start-up times, ms (empty when rendering in this thread) */
   startupMs: number[];
+  /** things worth saying that did not stop the render (an unreadable manifest, cleaned temporary files) */
+  warnings: string[];
 }
+
+/** How many foreign files a refusal names before it says "and N more". */
+const FOREIGN_NAMED = 5;
 
 /** The frames of a range that belong to a shard (by index from the range's first frame). */
 export function shardFrames(range: FrameRange, shard?: Shard): number[] {
@@ -68,18 +76,84 @@ export function fileMatches(file: string, rec: { size: number; sha256: string } 
   return sha256(readFileSync(file)) === rec.sha256;
 }
 
-export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions = {}): Promise<SequenceResult> {
+/** What a render of a sequence would do, worked out from the manifests and files on disk. */
+export interface SequencePlan {
+  template: string;
+  hash: string;
+  /** this render's manifest (a shard's own) */
+  manifest: string;
+  kept: [number, ManifestFrame][];
+  todo: FrameJob[];
+  /** files under frame names that no manifest of the sequence records or plans */
+  foreign: string[];
+  warnings: string[];
+}
+
+/** Plan a render without writing anything (the output folder need not exist). */
+export function planSequence(shot: ResolvedShot, opts: Pick<SequenceOptions, 'frames' | 'template' | 'shard' | 'force'> = {}): SequencePlan {
   const range = opts.frames ?? { first: shot.frame.first, last: shot.frame.last };
   const template = opts.template ?? shot.output.template;
-  const folder = path.dirname(template);
-  try {
-    ensureDir(folder);
-  } catch (e) {
-    const err = e as NodeJS.ErrnoException;
-    throw new OutputError(`cannot create the output folder ${folder}: ${err.code ?? err.message}`);
-  }
   const hash = shotHash(shot);
-  const mine = manifestPath(template, opts.shard);
+  const warnings: string[] = [];
+  const unreadable: string[] = [];
+  const manifests = readManifests(template, unreadable);
+  for (const u of unreadable) warnings.push(`${u} is not a manifest straylight can read; treated as absent (its frames are rendered again)`);
+  // an unreadable manifest of this sequence says its files are ours, though not which
+  const presumeOurs = unreadable.length > 0;
+  // frames any render of this sequence recorded or set out to write: a file under such a name is
+  // ours to replace (a damaged frame, one a killed render left); records of this shot's hash let
+  // finished frames be kept
+  const current = new Map<number, ManifestFrame>();
+  const ours = new Set<number>();
+  for (const { manifest: m } of manifests) {
+    for (const f of m.pending ?? []) ours.add(f);
+    for (const [f, rec] of Object.entries(m.frames)) {
+      ours.add(Number(f));
+      if (recordHash(m, rec) === hash) current.set(Number(f), rec);
+    }
+  }
+  const plan: SequencePlan = { template, hash, manifest: manifestPath(template, opts.shard), kept: [], todo: [], foreign: [], warnings };
+  for (const f of shardFrames(range, opts.shard)) {
+    const file = expandFramePath(template, f);
+    const rec = current.get(f);
+    if (!opts.force && fileMatches(file, rec)) {
+      plan.kept.push([f, rec!]);
+    } else {
+      if (!opts.force && !presumeOurs && !ours.has(f) && existsSync(file)) plan.foreign.push(file);
+      plan.todo.push({ frame: f, file });
+    }
+  }
+  return plan;
+}
+
+/** Refuse a plan that would replace files straylight did not write (named, at most a few). */
+export function refuseForeign(foreign: string[]): void {
+  if (foreign.length === 0) return;
+  const n = foreign.length;
+  const named = foreign.slice(0, FOREIGN_NAMED).join(', ');
+  const more = n > FOREIGN_NAMED ? ` and ${n - FOREIGN_NAMED} more` : '';
+  throw new InputError(`${n} file${n === 1 ? '' : 's'} already under the output's frame names ${n === 1 ? 'was' : 'were'} not written by straylight (no manifest beside ${n === 1 ? 'it' : 'them'} records ${n === 1 ? 'it' : 'them'}): ${named}${more}; nothing was rendered. Choose another output path, or give --force to replace ${n === 1 ? 'it' : 'them'}`);
+}
+
+export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions = {}): Promise<SequenceResult> {
+  const { template, hash, manifest: mine, kept, todo, foreign, warnings } = planSequence(shot, opts);
+  // never replace what straylight did not write: said before anything is written
+  refuseForeign(foreign);
+  const folder = path.dirname(template);
+  checkWritableFolder(folder);
+  const result: SequenceResult = { written: [], skipped: [], failed: [], interrupted: false, manifest: mine, startupMs: [], warnings };
+  const removed = cleanStrayTempFiles(template);
+  if (removed > 0) warnings.push(`removed ${removed} temporary file${removed === 1 ? '' : 's'} left in ${folder} by an interrupted render`);
+  for (const [f] of kept) {
+    result.skipped.push(f);
+    opts.onFrame?.({ kind: 'skipped', frame: f, file: expandFramePath(template, f) });
+  }
+
+  // This manifest keeps every record it had for frames this run does not render (any hash, and
+  // frames outside the range), gains the kept frames, and loses those being rendered until each is
+  // written. Saves merge under a lock with what other processes recorded in it meanwhile.
+  const touched = new Set(todo.map((j) => j.frame));
+  const own = new Map<string, ManifestFrame>(kept.map(([f, rec]) => [String(f), { size: rec.size, sha256: rec.sha256 }]));
   const manifest: Manifest = {
     version: 1,
     tool: TOOL_VERSION,
@@ -91,33 +165,31 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
     ...(opts.shard && opts.shard.n > 1 ? { shard: opts.shard } : {}),
     frames: {},
   };
-  // what earlier renders of the same shot left, from any manifest of this sequence
-  const known = new Map<number, { size: number; sha256: string }>();
-  if (!opts.force) {
-    for (const { manifest: m } of readManifests(template)) {
-      if (m.shotHash !== hash) continue;
-      for (const [f, rec] of Object.entries(m.frames)) known.set(Number(f), rec);
-    }
+  const writeMerged = () =>
+    withManifestLock(mine, () => {
+      const onDisk = readManifests(template).find((x) => x.file === mine)?.manifest;
+      const frames: Record<string, ManifestFrame> = {};
+      const pending = new Set([...touched].filter((f) => !own.has(String(f))));
+      for (const f of onDisk?.pending ?? []) if (!touched.has(f) && !own.has(String(f))) pending.add(f);
+      if (onDisk) {
+        for (const [f, rec] of Object.entries(onDisk.frames)) {
+          if (touched.has(Number(f)) || own.has(f)) continue;
+          const h = recordHash(onDisk, rec);
+          frames[f] = h === hash ? { size: rec.size, sha256: rec.sha256 } : { size: rec.size, sha256: rec.sha256, shotHash: h };
+        }
+      }
+      for (const [f, rec] of own) frames[f] = rec;
+      manifest.frames = Object.fromEntries(Object.entries(frames).sort((x, y) => Number(x[0]) - Number(y[0])));
+      if (pending.size > 0) manifest.pending = [...pending].sort((x, y) => x - y);
+      else delete manifest.pending;
+      writeManifest(mine, manifest);
+    });
+  try {
+    writeMerged();
+  } catch (e) {
+    const err = e as NodeJS.ErrnoException;
+    throw new OutputError(err.code === 'ELOCKED' ? `${err.message}; try again when it is done` : `cannot write the manifest ${mine}: ${whyNotWritable(err)}`);
   }
-  // a manifest of this share, kept from earlier runs (frames outside this run's range stay listed)
-  for (const { file, manifest: m } of readManifests(template)) {
-    if (file === mine && m.shotHash === hash && !opts.force) Object.assign(manifest.frames, m.frames);
-  }
-  const result: SequenceResult = { written: [], skipped: [], failed: [], interrupted: false, manifest: mine, startupMs: [] };
-  const todo: FrameJob[] = [];
-  for (const f of shardFrames(range, opts.shard)) {
-    const file = expandFramePath(template, f);
-    const rec = known.get(f);
-    if (!opts.force && fileMatches(file, rec)) {
-      result.skipped.push(f);
-      manifest.frames[String(f)] = rec!;
-      opts.onFrame?.({ kind: 'skipped', frame: f, file });
-    } else {
-      delete manifest.frames[String(f)];
-      todo.push({ frame: f, file });
-    }
-  }
-  writeManifest(mine, manifest);
 
   // screening wants frames in order: hold early arrivals until their turn
   const order = todo.map((j) => j.frame);
@@ -134,12 +206,12 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
   let lastSave = performance.now();
   const save = (force = false) => {
     if (force || performance.now() - lastSave > 500) {
-      writeManifest(mine, manifest);
+      writeMerged();
       lastSave = performance.now();
     }
   };
   const done = (r: FrameDone) => {
-    manifest.frames[String(r.frame)] = { size: r.bytes, sha256: r.sha256 };
+    own.set(String(r.frame), { size: r.bytes, sha256: r.sha256 });
     result.written.push(r.frame);
     opts.onFrame?.({ kind: 'written', frame: r.frame, file: r.file, ms: r.ms });
     held.set(r.frame, r.cells);

@@ -3,7 +3,7 @@
 
 import { existsSync, readdirSync } from 'node:fs';
 import path from 'node:path';
-import { readManifests, type ManifestFrame } from '../io/manifest.js';
+import { readManifests, recordHash, strayTempFiles, type ManifestFrame } from '../io/manifest.js';
 import { expandFramePath } from '../format/frame-path.js';
 import { fileMatches } from './sequence.js';
 
@@ -18,24 +18,26 @@ export interface VerifyReport {
   corrupt: number[];
   /** shot hashes met in the manifests (more than one: frames of different renders are mixed) */
   hashes: string[];
+  /** hidden temporary files an interrupted write left beside the frames */
+  temporary: string[];
 }
 
 export function verifySequence(template: string, expect?: { first: number; last: number; hash: string }): VerifyReport {
   const manifests = readManifests(template);
-  const hashes = [...new Set(manifests.map((m) => m.manifest.shotHash))];
-  const hash = expect?.hash ?? hashes[0];
+  const hashes = [...new Set(manifests.flatMap(({ manifest: m }) => [m.shotHash, ...Object.values(m.frames).map((r) => recordHash(m, r))]))];
+  const hash = expect?.hash ?? manifests[0]?.manifest.shotHash;
   const records = new Map<number, ManifestFrame>();
   let first = expect?.first ?? Infinity;
   let last = expect?.last ?? -Infinity;
   for (const { manifest } of manifests) {
-    if (manifest.shotHash !== hash) continue;
-    if (!expect) {
+    if (!expect && manifest.shotHash === hash) {
       first = Math.min(first, manifest.first);
       last = Math.max(last, manifest.last);
     }
-    for (const [f, rec] of Object.entries(manifest.frames)) records.set(Number(f), rec);
+    for (const [f, rec] of Object.entries(manifest.frames)) if (recordHash(manifest, rec) === hash) records.set(Number(f), rec);
   }
-  const report: VerifyReport = { template, first, last, intact: 0, missing: [], corrupt: [], hashes };
+  const temporary = strayTempFiles(template).map((s) => s.file);
+  const report: VerifyReport = { template, first, last, intact: 0, missing: [], corrupt: [], hashes, temporary };
   if (!Number.isFinite(first)) return report;
   for (let f = first; f <= last; f++) {
     const file = expandFramePath(template, f);
@@ -63,9 +65,10 @@ export function sequencesIn(dir: string): string[] {
 export function formatVerify(r: VerifyReport): string {
   const total = Number.isFinite(r.first) ? r.last - r.first + 1 : 0;
   const lines = [`${r.template}: ${r.intact} of ${total} frames present and intact (${r.first}-${r.last})`];
-  const list = (xs: number[]) => (xs.length > 20 ? `${xs.slice(0, 20).join(', ')} ... (${xs.length})` : xs.join(', '));
+  const list = (xs: (number | string)[]) => (xs.length > 20 ? `${xs.slice(0, 20).join(', ')} ... (${xs.length})` : xs.join(', '));
   if (r.missing.length) lines.push(`  missing: ${list(r.missing)}`);
   if (r.corrupt.length) lines.push(`  corrupt (differs from the manifest): ${list(r.corrupt)}`);
+  if (r.temporary.length) lines.push(`  temporary files left by an interrupted write (safe to delete; the next render removes them): ${list(r.temporary)}`);
   if (r.hashes.length > 1) lines.push(`  note: manifests of ${r.hashes.length} different renders of the shot are here; only the current one counts`);
   if (total === 0) lines.push('  no manifest found: render the shot first');
   return lines.join('\n') + '\n';

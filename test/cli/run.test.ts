@@ -112,7 +112,7 @@ describe('straylight CLI', () => {
     const f = shotFile();
     const out = path.join(path.dirname(f), 'still.png');
     const r = await cli(['still', f, '--frame', '2', '--out', out]);
-    expect(r).toEqual({ code: 0, stdout: '', stderr: '' });
+    expect(r).toEqual({ code: 0, stdout: `${out}: frame 2, 64x48 16-bit PNG, srgb\n`, stderr: '' });
     const png = decode(readFileSync(out));
     expect([png.width, png.height, png.depth]).toEqual([64, 48, 16]);
   });
@@ -121,7 +121,15 @@ describe('straylight CLI', () => {
     const f = shotFile();
     const r = await cli(['render', f, '--out', '/proc/straylight-none/f.####.png']);
     expect(r.code).toBe(ExitCode.framesFailed);
-    expect(r.stderr).toBe('cannot create the output folder /proc/straylight-none: ENOENT\n');
+    expect(r.stderr).toBe('cannot write to the output folder /proc/straylight-none: a folder cannot be made there\n');
+  });
+
+  it('still refuses a frame outside the shot\'s range, as render --frames does', async () => {
+    const f = shotFile();
+    const r = await cli(['still', f, '--frame', '9', '--out', path.join(path.dirname(f), 'x.png')]);
+    expect(r.stderr).toBe("--frame: 9 lies outside the shot's range 1-3\n");
+    expect(r.code).toBe(ExitCode.usage);
+    expect(existsSync(path.join(path.dirname(f), 'x.png'))).toBe(false);
   });
 
   it('a binary file given as the shot exits 3 with one line', async () => {
@@ -208,4 +216,29 @@ describe('straylight visibility', () => {
     expect(Number(eff)).toBeCloseTo(vis[1] * 1, 4); // intensity 0 stops: gain 1
     expect(decode(readFileSync(plot)).width).toBe(1200);
   });
+});
+
+describe('output that cannot be written', () => {
+  // As root, permission bits stop nothing, so these use places no process can write: sysfs (EACCES)
+  // and a folder under /proc (a folder cannot be made there). Each command says so in one line,
+  // exit 4, before any work and with no stack trace.
+  const cases: [string, (shot: string) => string[], string][] = [
+    ['render --out', (s) => ['render', s, '--out', '/sys/kernel/f.####.png'], 'cannot write to the output folder /sys/kernel: permission denied'],
+    ['still', (s) => ['still', s, '--frame', '1', '--out', '/proc/self/nope/f.png'], 'cannot write to the output folder /proc/self/nope: a folder cannot be made there'],
+    ['sheet', (s) => ['sheet', s, '-o', '/sys/kernel/sheet.png'], 'cannot write to the output folder /sys/kernel: permission denied'],
+    ['batch --report', (s) => ['batch', s, '--report', '/sys/kernel/r.json'], "cannot write to the report's folder /sys/kernel: permission denied"],
+    ['lens --plot', () => ['lens', 'triplet-50', '--plot', '/sys/kernel/lens.png'], 'cannot write to the output folder /sys/kernel: permission denied'],
+    ['visibility --plot', (s) => ['visibility', s, '--plot', '/sys/kernel/v.png'], 'cannot write to the output folder /sys/kernel: permission denied'],
+    ['visibility --csv', (s) => ['visibility', s, '--csv', '/proc/self/nope/v.csv'], 'cannot write to the output folder /proc/self/nope: a folder cannot be made there'],
+  ];
+  for (const [name, args, message] of cases) {
+    it(`${name}: one line, exit 4`, async () => {
+      const dir = tempDir();
+      writeFileSync(path.join(dir, 'shot.yaml'), MINIMAL_SHOT);
+      if (name === 'sheet') expect((await cli(['render', path.join(dir, 'shot.yaml'), '--quiet'])).code).toBe(0);
+      const r = await cli(args(path.join(dir, 'shot.yaml')));
+      expect(r.stderr).toBe(`${message}\n`);
+      expect(r.code).toBe(4);
+    });
+  }
 });

@@ -21,10 +21,14 @@ describe('sequence rendering', () => {
 
   it('reports a frame it cannot write and renders the others', async () => {
     const dir = tempDir();
-    // a folder where frame 3's file should go makes its rename fail
-    mkdirSync(path.join(dir, 'out', 'f.0003.png'), { recursive: true });
+    // a folder appearing where frame 3's file should go (after the start-up checks) makes its rename fail
     const events: FrameEvent[] = [];
-    const result = await renderSequence(shotIn(dir), { onFrame: (e) => events.push(e) });
+    const result = await renderSequence(shotIn(dir), {
+      onFrame: (e) => {
+        events.push(e);
+        if (e.kind === 'written' && e.frame === 1) mkdirSync(path.join(dir, 'out', 'f.0003.png'), { recursive: true });
+      },
+    });
     expect(result.written).toEqual([1, 2, 4, 5]);
     expect(result.failed.map((f) => f.frame)).toEqual([3]);
     expect(events.filter((e) => e.kind === 'failed')).toHaveLength(1);

@@ -6,7 +6,7 @@ import { availableParallelism } from 'node:os';
 import { existsSync } from 'node:fs';
 import { Option, type Command } from 'commander';
 import { ExitCode, StraylightError, UsageError } from '../../errors.js';
-import { writeFileAtomic } from '../../io/atomic-write.js';
+import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadShot } from '../../io/load-shot.js';
 import { encodePng } from '../../io/png.js';
 import { readFrameLinear } from '../../io/read-frame.js';
@@ -31,6 +31,8 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
     .option('--quiet', 'print nothing but errors and safety warnings')
     .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean }) => {
       if (!opts.report.endsWith('.json')) throw new UsageError(`--report: the file must end in .json, found "${opts.report}"`);
+      // the report is the morning's answer: its folder must take it before any shot renders
+      checkWritableFolder(path.dirname(path.resolve(opts.report)), "the report's folder");
       const report: BatchReport = { tool: `straylight ${VERSION}`, started: new Date().toISOString(), finished: '', shots: [] };
       for (const file of shots) {
         if (io.signal?.aborted) break;
@@ -70,8 +72,8 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
       }
       report.finished = new Date().toISOString();
       const json = path.resolve(opts.report);
-      writeFileAtomic(json, Buffer.from(`${JSON.stringify(report, null, 2)}\n`));
-      writeFileAtomic(json.replace(/\.json$/, '.html'), Buffer.from(batchHtml(report)));
+      writeOutputFile(json, Buffer.from(`${JSON.stringify(report, null, 2)}\n`));
+      writeOutputFile(json.replace(/\.json$/, '.html'), Buffer.from(batchHtml(report)));
       const bad = report.shots.filter((s) => s.status !== 'ok').length;
       if (!opts.quiet) io.stderr(`batch: ${report.shots.length - bad} of ${report.shots.length} shots rendered; report in ${json} and ${json.replace(/\.json$/, '.html')}\n`);
       if (io.signal?.aborted) setExit(ExitCode.interrupted);

@@ -6,7 +6,7 @@ import { execFileSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { Option, type Command } from 'commander';
 import { ExitCode, StraylightError } from '../../errors.js';
-import { writeFileAtomic } from '../../io/atomic-write.js';
+import { writeOutputFile } from '../../io/output-file.js';
 import { loadShot } from '../../io/load-shot.js';
 import { slurmScripts } from '../../farm/slurm.js';
 import type { CommandContext } from '../context.js';
@@ -29,7 +29,7 @@ export function registerFarm(program: Command, { io }: CommandContext): void {
       const bin = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..', '..', 'bin', 'straylight.js');
       const scripts = slurmScripts({ shotFile: path.resolve(shotFile), tasks: opts.tasks, jobsPerTask: opts.jobsPerTask, folder, partition: opts.partition, node: process.execPath, bin });
       for (const [name, text] of Object.entries({ 'render.sbatch': scripts.render, 'verify.sbatch': scripts.verify, 'submit.sh': scripts.submit })) {
-        writeFileAtomic(path.join(folder, name), Buffer.from(text));
+        writeOutputFile(path.join(folder, name), Buffer.from(text));
       }
       if (!opts.submit) {
         io.stdout(`wrote ${folder}/render.sbatch, verify.sbatch and submit.sh; submit with: bash ${path.join(folder, 'submit.sh')}\n`);

@@ -3,7 +3,7 @@
 
 import path from 'node:path';
 import type { Command } from 'commander';
-import { writeFileAtomic } from '../../io/atomic-write.js';
+import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadLens } from '../../io/load-lens.js';
 import { encodePng } from '../../io/png.js';
 import { prepareLens } from '../../optics/ghost-system.js';
@@ -22,11 +22,12 @@ export function registerLens(program: Command, { io }: CommandContext): void {
     .action((name: string, opts: { json?: boolean; all?: boolean; plot?: string }) => {
       if (opts.plot) requireExtension('--plot', opts.plot, ['.png']);
       const { lens, source } = loadLens(name);
+      if (opts.plot) checkWritableFolder(path.dirname(path.resolve(opts.plot)));
       const system = prepareLens(lens, 'medium', 0);
       const report = lensReport(lens, system);
       io.stdout(opts.json ? `${JSON.stringify(report, null, 2)}\n` : formatLensReport(report, source, opts.all ? Infinity : 20));
       if (opts.plot) {
-        writeFileAtomic(path.resolve(opts.plot), encodePng(lensPlot(lens, system), { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+        writeOutputFile(path.resolve(opts.plot), encodePng(lensPlot(lens, system), { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
       }
     });
 }

@@ -8,7 +8,8 @@ import { ExitCode, UsageError } from '../../errors.js';
 import { loadShot } from '../../io/load-shot.js';
 import { checkOutputTemplate } from '../../shot/resolve.js';
 import type { AlphaMode, OutputFormat, ResolvedShot } from '../../shot/types.js';
-import { renderSequence, shardFrames } from '../../render/sequence.js';
+import { planSequence, refuseForeign, renderSequence, shardFrames } from '../../render/sequence.js';
+import { checkWritableFolder } from '../../io/output-file.js';
 import { outputSequences } from '../../render/passes.js';
 import { FlashAnalyser } from '../../safety/flash.js';
 import { findFfmpeg, movieKind, writeMovie } from '../../review/movie.js';
@@ -65,6 +66,12 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
       const sharded = Boolean(shard && shard.n > 1);
       const analyser = new FlashAnalyser(shot.frame.widthPx, shot.frame.heightPx, shot.frame.rate);
       const sequences = outputSequences(shot);
+      // before any work: no file straylight did not write would be replaced, and every folder the
+      // render writes to takes files
+      const plans = sequences.map((seq) => planSequence(seq.shot, { frames, template: template ? writtenTemplate(seq, template) : undefined, shard, force: opts.force }));
+      refuseForeign(plans.flatMap((p) => p.foreign));
+      for (const folder of new Set(plans.map((p) => path.dirname(p.template)))) checkWritableFolder(folder);
+      if (opts.over) checkWritableFolder(path.dirname(compositeTemplate(template ?? shot.output.template)), 'the review frames\' folder');
       total *= sequences.length;
       if (progress) progress.total = total;
       const result = { written: [] as number[], skipped: [] as number[], failed: [] as { frame: number; error: string }[], interrupted: false, manifest: '' };
@@ -95,6 +102,7 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
         result.failed.push(...r.failed);
         result.interrupted = r.interrupted;
         result.manifest = r.manifest;
+        if (!opts.quiet) for (const w of r.warnings) io.stderr(`warning: ${w}\n`);
       }
       progress?.finish();
       const dest = template ?? shot.output.template;
@@ -117,8 +125,10 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
       if (!result.interrupted && sharded) {
         if (!opts.quiet) io.stderr(`flash screening needs every frame in order: run straylight flashes ${shotFile} when all shards are done\n`);
       } else if (!result.interrupted && result.failed.length === 0) {
-        // separate passes are judged together, as the viewer will see them: read back and summed
-        const report = sequences.length === 1 ? analyser.report() : screenSequences(sequences.map((q) => writtenTemplate(q, template)), frames, shot).report();
+        // the whole requested range is judged, frames kept from an earlier render too (read back),
+        // and separate passes together, as the viewer will see them
+        const streamed = sequences.length === 1 && result.skipped.length === 0;
+        const report = streamed ? analyser.report() : screenSequences(sequences.map((q) => writtenTemplate(q, template)), frames, shot).report();
         if (report.spans.length > 0) {
           io.stderr(`WARNING: this pass may flash dangerously for viewers with photosensitive epilepsy.\n${formatFlashReport(report, timecodeOf(shot), 'over black')}`);
           if (opts.failOnFlash) setExit(ExitCode.flashes);

@@ -2,7 +2,7 @@
 
 import path from 'node:path';
 import { Option, type Command } from 'commander';
-import { writeFileAtomic } from '../../io/atomic-write.js';
+import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { encodePng } from '../../io/png.js';
 import { contactSheet } from '../../review/sheet.js';
 import { checkPlateTemplate, openSource } from '../../review/source.js';
@@ -23,10 +23,11 @@ export function registerSheet(program: Command, { io }: CommandContext): void {
     .action((arg: string, opts: { out: string; every?: number; columns: number; tileWidth: number; over?: string; rate?: string }) => {
       requireExtension('--out', opts.out, ['.png'], 'the sheet is a PNG; the file');
       checkPlateTemplate(opts.over);
+      checkWritableFolder(path.dirname(path.resolve(opts.out)));
       const src = openSource(arg, opts.rate);
       const every = opts.every ?? Math.max(1, Math.ceil(src.frames.length / 24));
       const { image, frames } = contactSheet(src, { every, columns: opts.columns, tileWidth: opts.tileWidth, over: opts.over });
-      writeFileAtomic(path.resolve(opts.out), encodePng(image, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+      writeOutputFile(path.resolve(opts.out), encodePng(image, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
       io.stdout(`${opts.out}: ${frames.length} frames (${frames[0]}-${frames[frames.length - 1]}, every ${every}), ${image.width}x${image.height}\n`);
     });
 }

@@ -2,14 +2,14 @@
 
 import path from 'node:path';
 import type { Command } from 'commander';
-import { writeFileAtomic } from '../../io/atomic-write.js';
+import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadShot } from '../../io/load-shot.js';
 import { encodeOutput } from '../../io/encode-frame.js';
 import { renderFrame } from '../../render/render-frame.js';
 import type { CommandContext } from '../context.js';
-import { integer, requireExtension } from '../options.js';
+import { integer, parseFrameRange, requireExtension } from '../options.js';
 
-export function registerStill(program: Command, _ctx: CommandContext): void {
+export function registerStill(program: Command, { io }: CommandContext): void {
   program
     .command('still')
     .description('render one frame to a file')
@@ -17,12 +17,18 @@ export function registerStill(program: Command, _ctx: CommandContext): void {
     .requiredOption('--frame <n>', 'frame number', integer('--frame'))
     .requiredOption('--out <file>', 'output file: .png or .exr')
     .action((shotFile: string, opts: { frame: number; out: string }) => {
-      const shot = loadShot(shotFile);
-      const ext = path.extname(opts.out).toLowerCase();
       requireExtension('--out', opts.out, ['.png', '.exr']);
+      const shot = loadShot(shotFile);
+      parseFrameRange(String(opts.frame), shot, '--frame');
+      const ext = path.extname(opts.out).toLowerCase();
+      const out = path.resolve(opts.out);
+      checkWritableFolder(path.dirname(out));
       // the file's extension picks the format; the shot's other output settings apply
       const o = shot.output;
       const asked = ext === '.exr' ? { ...o, format: 'exr' as const } : o.format === 'exr' ? { ...o, format: 'png16' as const, transfer: 'linear' as const } : o;
-      writeFileAtomic(path.resolve(opts.out), encodeOutput(renderFrame(shot, opts.frame), asked, shot.frame.pixelAspect));
+      const bytes = encodeOutput(renderFrame(shot, opts.frame), asked, shot.frame.pixelAspect);
+      writeOutputFile(out, bytes);
+      const { widthPx, heightPx } = shot.frame;
+      io.stdout(`${out}: frame ${opts.frame}, ${widthPx}x${heightPx} ${asked.format === 'exr' ? `OpenEXR ${asked.exr.type}` : `${asked.format === 'png8' ? '8' : '16'}-bit PNG, ${asked.transfer}`}\n`);
     });
 }

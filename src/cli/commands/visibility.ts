@@ -3,7 +3,7 @@
 
 import path from 'node:path';
 import type { Command } from 'commander';
-import { writeFileAtomic } from '../../io/atomic-write.js';
+import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadShot } from '../../io/load-shot.js';
 import { encodePng } from '../../io/png.js';
 import { FloatImage } from '../../raster/image.js';
@@ -24,6 +24,7 @@ export function registerVisibility(program: Command, { io }: CommandContext): vo
     .action((shotFile: string, opts: { csv?: string; plot?: string }) => {
       if (opts.plot) requireExtension('--plot', opts.plot, ['.png']);
       const shot = loadShot(shotFile);
+      for (const f of [opts.csv, opts.plot]) if (f) checkWritableFolder(path.dirname(path.resolve(f)));
       const mattes = matteProvider(shot);
       const rows: string[] = ['frame,light,x,y,visibility,effective_intensity'];
       const curves = shot.lights.map(() => [] as number[]);
@@ -43,7 +44,7 @@ export function registerVisibility(program: Command, { io }: CommandContext): vo
           rows.push(`${f},${light.name},${s.xPx.toFixed(2)},${s.yPx.toFixed(2)},${v.toFixed(4)},${(v * g).toPrecision(6)}`);
         });
       }
-      if (opts.csv) writeFileAtomic(path.resolve(opts.csv), Buffer.from(rows.join('\n') + '\n'));
+      if (opts.csv) writeOutputFile(path.resolve(opts.csv), Buffer.from(rows.join('\n') + '\n'));
       else io.stdout(rows.join('\n') + '\n');
       if (opts.plot) {
         const W = 1200;
@@ -60,7 +61,7 @@ export function registerVisibility(program: Command, { io }: CommandContext): vo
           drawLine(img, X(0), Y(1), X(n), Y(1), 1, [0.25, 0.25, 0.25]);
           drawPolyline(img, c.flatMap((v, k) => [X(k), Y(v)]), 2, colours[li % colours.length]);
         });
-        writeFileAtomic(path.resolve(opts.plot), encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+        writeOutputFile(path.resolve(opts.plot), encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
       }
     });
 }
