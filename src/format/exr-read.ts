@@ -73,7 +73,25 @@ class Cursor {
   }
 }
 
-export function decodeExr(buf: Buffer): ExrImageData {
+/** What an OpenEXR header says, and where the offset table after it starts. */
+export interface ExrHeader {
+  channels: Channel[];
+  compression: string;
+  dataWindow: [number, number, number, number];
+  displayWindow: [number, number, number, number];
+  pixelAspectRatio: number;
+  /** the display window's size */
+  width: number;
+  height: number;
+  /** byte offset just past the header */
+  end: number;
+}
+
+/**
+ * Parse the header of a single-part scanline OpenEXR file (refusing the kinds this reader does
+ * not decode). `buf` may hold only the start of the file: a header cut short throws.
+ */
+export function readExrHeader(buf: Buffer): ExrHeader {
   if (buf.length < 8 || buf.readUInt32LE(0) !== 20000630) throw new ExrFormatError('not an OpenEXR file (no 76 2f 31 01 magic number)');
   const version = buf.readUInt32LE(4);
   if ((version & 0xff) !== 2) throw new ExrFormatError(`OpenEXR version ${version & 0xff} is not supported (only 2)`);
@@ -82,7 +100,6 @@ export function decodeExr(buf: Buffer): ExrImageData {
   if (version & 0x1000) throw new ExrFormatError('multi-part OpenEXR files are not supported; extract the part with the matte');
   const c = new Cursor(buf, 8);
   const maxName = version & 0x400 ? 255 : 31;
-
   let channels: Channel[] | undefined;
   let compression: string | undefined;
   let dataWindow: [number, number, number, number] | undefined;
@@ -123,6 +140,12 @@ export function decodeExr(buf: Buffer): ExrImageData {
     c.p = start + size;
   }
   if (!channels || !compression || !dataWindow || !displayWindow) throw new ExrFormatError('the header lacks channels, compression, dataWindow or displayWindow');
+  return { channels, compression, dataWindow, displayWindow, pixelAspectRatio, width: displayWindow[2] - displayWindow[0] + 1, height: displayWindow[3] - displayWindow[1] + 1, end: c.p };
+}
+
+export function decodeExr(buf: Buffer): ExrImageData {
+  const { channels, compression, dataWindow, displayWindow, pixelAspectRatio, end } = readExrHeader(buf);
+  const c = new Cursor(buf, end);
   const per = LINES[compression];
   if (!per) throw new ExrFormatError(`${compression.toUpperCase()} compression is not supported (supported: none, RLE, ZIPS, ZIP, PIZ); re-save the matte with one of those`);
 

@@ -4,7 +4,9 @@
 
 import { InputError } from '../errors.js';
 import type { MatteImage } from '../occlusion/matte.js';
-import { decodeMatte } from './matte-read.js';
+import { decodeMatte, MatteFileError, matteFrameSize } from './matte-read.js';
+import { matteFramesRead } from '../timeline/shutter.js';
+import path from 'node:path';
 import type { ResolvedMatte, ResolvedShot } from '../shot/types.js';
 import { expandFramePath } from '../format/frame-path.js';
 import { framesOnDisk } from './read-frame.js';
@@ -44,7 +46,7 @@ export class MatteProvider {
     try {
       img = decodeMatte(file, matte.channel, matte.kind);
     } catch (e) {
-      throw new InputError(`matte "${matte.name}": cannot read ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+      throw new InputError(`matte "${matte.name}": ${file}: ${e instanceof MatteFileError ? e.message : 'cannot be read'}`);
     }
     if (matte.depth) {
       const { encoding, near, far, scale } = matte.depth;
@@ -59,30 +61,54 @@ export class MatteProvider {
   }
 }
 
-/** Problems with a shot's mattes found on disk: none there, or the wrong size (located). */
+/** How many missing or unreadable frames a message names before it counts the rest. */
+const NAMED = 5;
+
+/**
+ * Problems with a shot's mattes found on disk, before the first frame: no frames there; gaps in
+ * the frames the render will read (the shot's range through the shutter, with the matte's offset,
+ * inside the sequence's first and last frame: outside it `before`/`after` decide); any of those
+ * frames whose header cannot be read; a frame of another size than the shot's (unless
+ * `resize: stretch`). Headers only: a long sequence is checked without decoding it.
+ */
 export function checkMattes(shot: ResolvedShot): { loc: ResolvedMatte['at']; path: string; message: string }[] {
   const problems: { loc: ResolvedMatte['at']; path: string; message: string }[] = [];
   const provider = new MatteProvider();
+  const read = matteFramesRead(shot.shutter, shot.frame.first, shot.frame.last, shot.seed);
+  const list = (names: string[]) => (names.length > NAMED ? `${names.slice(0, NAMED).join(', ')} and ${names.length - NAMED} more` : names.join(', '));
   for (const m of shot.mattes) {
     const frames = provider.frames(m);
+    const problem = (message: string) => problems.push({ loc: m.at, path: m.atPath, message });
     if (frames.length === 0) {
-      problems.push({ loc: m.at, path: m.atPath, message: `no matte frames found for ${m.template}` });
+      problem(`no matte frames found for ${m.template}`);
       continue;
     }
-    let img: MatteImage | undefined;
-    try {
-      img = decodeMatte(expandFramePath(m.template, frames[0]), m.channel, m.kind);
-    } catch (e) {
-      problems.push({ loc: m.at, path: m.atPath, message: `cannot read ${expandFramePath(m.template, frames[0])}: ${(e as Error).message}` });
-      continue;
-    }
+    const from = Math.max(read.first + m.offset, frames[0]);
+    const to = Math.min(read.last + m.offset, frames[frames.length - 1]);
+    const onDisk = new Set(frames);
+    const missing: string[] = [];
+    for (let f = from; f <= to; f++) if (!onDisk.has(f)) missing.push(path.basename(expandFramePath(m.template, f)));
+    if (missing.length) problem(`${list(missing)} missing (the shot reads matte frames ${from}-${to} of this sequence)`);
     const { widthPx, heightPx } = shot.frame;
-    if ((img.width !== widthPx || img.height !== heightPx) && m.resize === 'error') {
-      problems.push({
-        loc: m.at,
-        path: m.atPath,
-        message: `the matte is ${img.width}x${img.height} px, the frame ${widthPx}x${heightPx}; give resize: stretch to stretch it over the frame`,
-      });
+    const unreadable: string[] = [];
+    const sizes = new Map<string, string[]>();
+    for (let f = from; f <= to; f++) {
+      if (!onDisk.has(f)) continue;
+      const file = expandFramePath(m.template, f);
+      try {
+        const { width, height } = matteFrameSize(file, m.channel, m.kind);
+        if ((width !== widthPx || height !== heightPx) && m.resize === 'error') {
+          const key = `${width}x${height}`;
+          sizes.set(key, [...(sizes.get(key) ?? []), path.basename(file)]);
+        }
+      } catch (e) {
+        unreadable.push(`${path.basename(file)}: ${(e as Error).message}`);
+      }
+    }
+    if (unreadable.length) problem(`cannot read ${list(unreadable)}`);
+    for (const [size, names] of sizes) {
+      const which = names.length === to - from + 1 - missing.length - unreadable.length ? 'the matte is' : `${list(names)} ${names.length === 1 ? 'is' : 'are'}`;
+      problem(`${which} ${size} px, the frame ${widthPx}x${heightPx}; give resize: stretch to stretch it over the frame`);
     }
   }
   return problems;

@@ -2,10 +2,10 @@
 // covered) or scene depth. Formats plug in by file extension: PNG (8/16 bit) and OpenEXR (any
 // channel, half/float).
 
-import { readFileSync } from 'node:fs';
+import { closeSync, openSync, readFileSync, readSync, statSync } from 'node:fs';
 import path from 'node:path';
 import pngjs from 'pngjs';
-import { decodeExr } from '../format/exr-read.js';
+import { decodeExr, ExrFormatError, readExrHeader } from '../format/exr-read.js';
 import type { MatteImage } from '../occlusion/matte.js';
 
 const { PNG } = pngjs;
@@ -27,11 +27,90 @@ export function matteFormats(): string[] {
   return [...decoders.keys()];
 }
 
+/** A matte file that cannot be used, said in our words (never a decoder library's message). */
+export class MatteFileError extends Error {}
+
+/** A file-system error while reading, in plain words. */
+function whyNotReadable(e: unknown): string | undefined {
+  switch ((e as NodeJS.ErrnoException).code) {
+    case 'ENOENT':
+      return 'no such file';
+    case 'EACCES':
+    case 'EPERM':
+      return 'permission denied';
+    case 'EISDIR':
+      return 'a folder, not a file';
+    case 'EIO':
+      return 'the device could not read it';
+    default:
+      return undefined;
+  }
+}
+
 export function decodeMatte(file: string, channel: MatteChannel, kind: 'alpha' | 'depth'): MatteImage {
   const ext = path.extname(file).toLowerCase();
   const decode = decoders.get(ext);
-  if (!decode) throw new Error(`no matte reader for ${ext} files (known: ${matteFormats().join(', ')})`);
-  return decode(file, channel, kind);
+  if (!decode) throw new MatteFileError(`no matte reader for ${ext} files (known: ${matteFormats().join(', ')})`);
+  try {
+    return decode(file, channel, kind);
+  } catch (e) {
+    if (e instanceof MatteFileError || e instanceof ExrFormatError) throw new MatteFileError(e.message);
+    const why = whyNotReadable(e);
+    if (why) throw new MatteFileError(why);
+    // anything a decoder library throws means the bytes are not what the name says
+    throw new MatteFileError(ext === '.png' ? 'not a readable PNG (damaged or truncated)' : `not a readable ${ext} file (damaged or truncated)`);
+  }
+}
+
+/** The first bytes of a file (all of it when shorter). */
+function head(file: string, bytes: number): Buffer {
+  const fd = openSync(file, 'r');
+  try {
+    const buf = Buffer.alloc(Math.min(bytes, statSync(file).size));
+    let n = 0;
+    while (n < buf.length) {
+      const r = readSync(fd, buf, n, buf.length - n, n);
+      if (r === 0) break;
+      n += r;
+    }
+    return buf.subarray(0, n);
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/**
+ * A matte frame's size from its header alone (PNG IHDR; OpenEXR display window, and the channel
+ * the matte reads is there), so a long sequence is checked without decoding it. Problems are
+ * MatteFileErrors in our words.
+ */
+export function matteFrameSize(file: string, channel?: MatteChannel, kind: 'alpha' | 'depth' = 'alpha'): { width: number; height: number } {
+  const ext = path.extname(file).toLowerCase();
+  try {
+    if (ext === '.png') {
+      const b = head(file, 33);
+      const sig = '89504e470d0a1a0a';
+      if (b.length < 24 || b.toString('hex', 0, 8) !== sig || b.toString('latin1', 12, 16) !== 'IHDR') throw new MatteFileError('not a PNG file (damaged, or another format under a .png name)');
+      return { width: b.readUInt32BE(16), height: b.readUInt32BE(20) };
+    }
+    if (ext === '.exr') {
+      // headers are small: read the start, and the whole file only if the header runs past it
+      const start = head(file, 1 << 16);
+      let header;
+      try {
+        header = readExrHeader(start);
+      } catch (e) {
+        if (start.length >= statSync(file).size) throw e;
+        header = readExrHeader(readFileSync(file));
+      }
+      exrMatteChannel(header.channels.map((c) => c.name), channel, kind);
+      return header;
+    }
+    throw new MatteFileError(`no matte reader for ${ext} files (known: ${matteFormats().join(', ')})`);
+  } catch (e) {
+    if (e instanceof MatteFileError || e instanceof ExrFormatError) throw new MatteFileError(e.message);
+    throw new MatteFileError(whyNotReadable(e) ?? 'cannot be read');
+  }
 }
 
 /** PNG, 8 or 16 bits: the channel (default r) scaled to [0, 1]; grey images give the same value in r, g, b. */
@@ -53,13 +132,18 @@ registerMatteFormat('.png', (file, channel) => {
  */
 registerMatteFormat('.exr', (file, channel, kind) => {
   const img = decodeExr(readFileSync(file));
-  const names = [...img.channels.keys()];
-  const asked = channel && /^[rgba]$/.test(channel) ? channel.toUpperCase() : channel;
-  const name = asked ?? (img.channels.has(kind === 'depth' ? 'Z' : 'A') ? (kind === 'depth' ? 'Z' : 'A') : names.length === 1 ? names[0] : undefined);
-  const values = name === undefined ? undefined : img.channels.get(name);
-  if (!values) {
-    const want = asked ? `no channel "${asked}"` : `no ${kind === 'depth' ? 'Z' : 'A'} channel`;
-    throw new Error(`${want}; the file has ${names.join(', ')}: give the matte a channel: NAME`);
-  }
-  return { width: img.width, height: img.height, values };
+  const name = exrMatteChannel([...img.channels.keys()], channel, kind);
+  return { width: img.width, height: img.height, values: img.channels.get(name)! };
 });
+
+/** Which channel of an OpenEXR matte is read: the named one, or Z/A by kind, or the only one. */
+function exrMatteChannel(names: string[], channel: MatteChannel, kind: 'alpha' | 'depth'): string {
+  const asked = channel && /^[rgba]$/.test(channel) ? channel.toUpperCase() : channel;
+  const dflt = kind === 'depth' ? 'Z' : 'A';
+  const name = asked ?? (names.includes(dflt) ? dflt : names.length === 1 ? names[0] : undefined);
+  if (name === undefined || !names.includes(name)) {
+    const want = asked ? `no channel "${asked}"` : `no ${dflt} channel`;
+    throw new MatteFileError(`${want}; the file has ${names.join(', ')}: give the matte a channel: NAME`);
+  }
+  return name;
+}

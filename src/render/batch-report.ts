@@ -9,7 +9,7 @@ export interface BatchShot {
   frames: number;
   written: number;
   skipped: number;
-  failed: { frame: number; error: string }[];
+  failed: { frame: number; error: string; badInput?: boolean }[];
   seconds: number;
   /** flash-screening spans (photosensitivity warnings) */
   flashes: FlaggedSpan[];

@@ -22,7 +22,8 @@ export function workerScript(): string {
 
 export interface PoolCallbacks {
   done(result: FrameDone): void;
-  failed(job: FrameJob, error: string): void;
+  /** badInput: the frame failed on the shot's own input (a damaged matte frame), not on the machine */
+  failed(job: FrameJob, error: string, badInput: boolean): void;
 }
 
 interface Slot {
@@ -80,7 +81,7 @@ export class RenderPool {
       this.callbacks.done(msg.result);
     } else {
       slot.busy = undefined;
-      this.retryOrFail(msg.job, msg.attempt, msg.error);
+      this.retryOrFail(msg.job, msg.badInput ? 1 : msg.attempt, msg.error, msg.badInput);
     }
     this.pump();
   }
@@ -92,14 +93,14 @@ export class RenderPool {
     slot.busy = undefined;
     void slot.worker.terminate();
     this.slots.splice(i, 1);
-    if (lost) this.retryOrFail(lost.job, lost.attempt, 'the worker rendering it stopped unexpectedly');
+    if (lost) this.retryOrFail(lost.job, lost.attempt, 'the worker rendering it stopped unexpectedly', false);
     if (!this.stopping && (this.queue.length > 0 || lost)) this.slots.push(this.spawn());
     this.pump();
   }
 
-  private retryOrFail(job: FrameJob, attempt: number, error: string): void {
+  private retryOrFail(job: FrameJob, attempt: number, error: string, badInput: boolean): void {
     if (attempt === 0 && !this.stopping) this.queue.unshift({ job, attempt: 1 });
-    else this.callbacks.failed(job, error);
+    else this.callbacks.failed(job, error, badInput);
   }
 
   private pump(): void {

@@ -16,7 +16,7 @@ import { FloatImage } from '../raster/image.js';
 import type { ResolvedLight, ResolvedShot } from '../shot/types.js';
 import { evalScalar } from '../timeline/track.js';
 import { lightState } from './frame-state.js';
-import { shutterTimes } from './shutter.js';
+import { shutterTimes } from '../timeline/shutter.js';
 
 /** What a shot needs precomputed before its frames render. */
 export interface ShotAssets {

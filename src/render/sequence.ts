@@ -45,12 +45,13 @@ export interface SequenceOptions {
 export type FrameEvent =
   | { kind: 'written'; frame: number; file: string; ms: number }
   | { kind: 'skipped'; frame: number; file: string }
-  | { kind: 'failed'; frame: number; error: string };
+  | { kind: 'failed'; frame: number; error: string; badInput: boolean };
 
 export interface SequenceResult {
   written: number[];
   skipped: number[];
-  failed: { frame: number; error: string }[];
+  /** badInput: the frame failed on the shot's input (a matte frame that will not decode) */
+  failed: { frame: number; error: string; badInput: boolean }[];
   interrupted: boolean;
   manifest: string;
   /** worker start-up times, ms (empty when rendering in this thread) */
@@ -218,9 +219,9 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
     release();
     save();
   };
-  const failed = (job: FrameJob, error: string) => {
-    result.failed.push({ frame: job.frame, error });
-    opts.onFrame?.({ kind: 'failed', frame: job.frame, error });
+  const failed = (job: FrameJob, error: string, badInput: boolean) => {
+    result.failed.push({ frame: job.frame, error, badInput });
+    opts.onFrame?.({ kind: 'failed', frame: job.frame, error, badInput });
     held.set(job.frame, null);
     release();
   };
@@ -237,8 +238,9 @@ export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions =
           done(runFrameJob(shot, job));
           break;
         } catch (e) {
-          if (attempt++ === 0) continue;
-          failed(job, (e as Error).message);
+          const badInput = e instanceof InputError;
+          if (attempt++ === 0 && !badInput) continue;
+          failed(job, (e as Error).message, badInput);
           break;
         }
       }

@@ -1,5 +1,6 @@
 // What a render worker does with each message; pure enough to test without threads.
 
+import { InputError } from '../errors.js';
 import type { ResolvedShot } from '../shot/types.js';
 import { runFrameJob } from './frame-job.js';
 import { adoptShotAssets } from './render-frame.js';
@@ -22,7 +23,8 @@ export function createWorkerHandler(fault?: WorkerFault, crash: () => never = ()
       }
       return { type: 'done', result: runFrameJob(shot, job) };
     } catch (e) {
-      return { type: 'failed', job, attempt, error: (e as Error).message };
+      // bad input (a matte frame that will not decode) is said as such, and not retried
+      return { type: 'failed', job, attempt, error: (e as Error).message, badInput: e instanceof InputError };
     }
   };
 }

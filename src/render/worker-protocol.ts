@@ -9,7 +9,7 @@ export type ToWorker = { type: 'init'; shot: ResolvedShot; assets: ShotAssets } 
 export type FromWorker =
   | { type: 'ready' }
   | { type: 'done'; result: FrameDone }
-  | { type: 'failed'; job: FrameJob; attempt: number; error: string };
+  | { type: 'failed'; job: FrameJob; attempt: number; error: string; badInput: boolean };
 
 /** Test-only fault injection, given to a worker at start: fail or crash on one frame. */
 export interface WorkerFault {

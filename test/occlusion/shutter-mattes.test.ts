@@ -10,7 +10,7 @@ import { encodePng } from '../../src/io/png.js';
 import { loadShot } from '../../src/io/load-shot.js';
 import { FloatImage } from '../../src/raster/image.js';
 import { lightVisibility, renderFrame } from '../../src/render/render-frame.js';
-import { exposureSeconds, shutterTimes } from '../../src/render/shutter.js';
+import { exposureSeconds, shutterTimes } from '../../src/timeline/shutter.js';
 import { tempDir } from '../helpers.js';
 
 const moving = (shutter: string) => `version: 1

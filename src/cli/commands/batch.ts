@@ -53,7 +53,7 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
             entry.failed.push(...result.failed);
             interrupted ||= result.interrupted;
           }
-          entry.status = interrupted ? 'interrupted' : entry.failed.length ? 'frames-failed' : 'ok';
+          entry.status = interrupted ? 'interrupted' : entry.failed.some((f) => f.badInput) ? 'bad-input' : entry.failed.length ? 'frames-failed' : 'ok';
           // screen the whole sequence as it is on disk now (kept frames included), passes summed
           if (entry.status === 'ok') {
             entry.flashes = screenSequences(sequences.map((q) => q.shot.output.template), { first: shot.frame.first, last: shot.frame.last }, shot).report().spans;

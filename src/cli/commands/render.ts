@@ -74,7 +74,7 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
       if (opts.over) checkWritableFolder(path.dirname(compositeTemplate(template ?? shot.output.template)), 'the review frames\' folder');
       total *= sequences.length;
       if (progress) progress.total = total;
-      const result = { written: [] as number[], skipped: [] as number[], failed: [] as { frame: number; error: string }[], interrupted: false, manifest: '' };
+      const result = { written: [] as number[], skipped: [] as number[], failed: [] as { frame: number; error: string; badInput: boolean }[], interrupted: false, manifest: '' };
       for (const seq of sequences) {
         if (result.interrupted) break;
         const r = await renderSequence(seq.shot, {
@@ -115,7 +115,8 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
         setExit(ExitCode.interrupted);
       } else if (result.failed.length > 0) {
         io.stderr(`${result.failed.length} of ${total} frames failed (${result.failed.map((f) => f.frame).join(', ')}); the other ${result.written.length + result.skipped.length} are in place\n`);
-        setExit(ExitCode.framesFailed);
+        // a frame lost to the shot's own input (a damaged matte frame) is bad input: fix the file
+        setExit(result.failed.some((f) => f.badInput) ? ExitCode.badInput : ExitCode.framesFailed);
       } else if (progress) {
         const keptNote = result.skipped.length ? ` (${result.skipped.length} already there, kept)` : '';
         const where = sequences.length > 1 ? `${sequences.length} passes (${sequences.map((q) => q.name).join(', ')}) beside ${dest}` : dest;

@@ -9,7 +9,7 @@ import { encodePng } from '../../io/png.js';
 import { FloatImage } from '../../raster/image.js';
 import { drawLine, drawPolyline, fill } from '../../raster/draw.js';
 import { lightVisibility, matteProvider } from '../../render/render-frame.js';
-import { shutterTimes } from '../../render/shutter.js';
+import { shutterTimes } from '../../timeline/shutter.js';
 import { lightGain, lightState } from '../../render/frame-state.js';
 import type { CommandContext } from '../context.js';
 import { requireExtension } from '../options.js';

@@ -3,8 +3,14 @@
 // frame interval: at 180 degrees and 24 fps, 1/48 s. K strata, each jittered by a hash of (shot
 // seed, frame, sample), so a frame's times never depend on render order or worker.
 
-import type { ShutterSettings } from '../shot/types.js';
-import { frameRateValue, type FrameRate } from '../timeline/frame-rate.js';
+import { frameRateValue, type FrameRate } from './frame-rate.js';
+
+/** The shutter as a shot gives it (ShutterSettings in shot/types.ts has this shape). */
+export interface Shutter {
+  angleDeg: number;
+  samples: number;
+  phaseDeg: number;
+}
 
 export function exposureSeconds(shutter: { angleDeg: number }, rate: FrameRate): number {
   return shutter.angleDeg / 360 / frameRateValue(rate);
@@ -19,8 +25,13 @@ export function hash01(a: number, b: number, c: number): number {
   return h / 4294967296;
 }
 
+/** The shot frames whose mattes a range's shutter samples read (each sample reads frame round(t)). */
+export function matteFramesRead(shutter: Shutter, first: number, last: number, seed: number): { first: number; last: number } {
+  return { first: Math.round(Math.min(...shutterTimes(shutter, first, seed))), last: Math.round(Math.max(...shutterTimes(shutter, last, seed))) };
+}
+
 /** Sample times (fractional frames) for a frame. One sample, or a closed shutter, gives the centre. */
-export function shutterTimes(shutter: ShutterSettings, frame: number, seed: number): number[] {
+export function shutterTimes(shutter: Shutter, frame: number, seed: number): number[] {
   const k = shutter.angleDeg > 0 ? shutter.samples : 1;
   const times: number[] = [];
   for (let i = 0; i < k; i++) {
