@@ -15,6 +15,8 @@ export const ExitCode = {
   flashes: 5,
   /** a system tool the command needs (ffmpeg for --movie) is not installed */
   toolMissing: 6,
+  /** not enough memory for even one worker at the shot's frame size; nothing was rendered */
+  memory: 7,
   /** the render was interrupted (SIGINT/SIGTERM); finished frames are kept */
   interrupted: 130,
 } as const;

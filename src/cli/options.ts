@@ -6,6 +6,7 @@ import { UsageError } from '../errors.js';
 import type { Shard } from '../io/manifest.js';
 import type { FrameRange } from '../render/sequence.js';
 import type { ResolvedShot } from '../shot/types.js';
+import { parseMemorySize } from '../render/memory.js';
 
 /** Parse "A-B" or "A" (negative numbers allowed: "-5--1"), inside the shot's range. */
 export function parseFrameRange(text: string, shot: ResolvedShot, flag = '--frames'): FrameRange {
@@ -57,4 +58,13 @@ export function frameList(range: FrameRange): number[] {
   const out: number[] = [];
   for (let f = range.first; f <= range.last; f++) out.push(f);
   return out;
+}
+
+/** A commander argument parser for a memory size such as 8G or 512M. */
+export function memorySize(name: string) {
+  return (v: string): number => {
+    const b = parseMemorySize(v);
+    if (b === undefined) throw new UsageError(`${name}: expected a size such as 8G, 512M or 1.5GiB, found "${v}"`);
+    return b;
+  };
 }

@@ -13,6 +13,8 @@ export class Progress {
   private kept = 0;
   private readonly start = performance.now();
   private lastTenth = -1;
+  /** files written per frame (separate passes): the line counts frames, not files */
+  passes = 1;
 
   constructor(
     private readonly sink: ProgressSink,
@@ -38,12 +40,15 @@ export class Progress {
 
   line(): string {
     const secs = (performance.now() - this.start) / 1000;
-    const fps = renderRate(this.done - this.kept, secs);
-    const left = this.total - this.done;
+    const p = this.passes;
+    const fps = renderRate(this.done - this.kept, secs) / p;
+    const left = (this.total - this.done) / p;
     const eta = left === 0 ? '0s' : fps > 0 ? formatDuration(left / fps) : '--';
-    const kept = this.kept ? `, ${this.kept} kept` : '';
+    const frames = (n: number) => (n % p === 0 ? String(n / p) : (n / p).toFixed(1));
+    const kept = this.kept ? `, ${frames(this.kept)} kept` : '';
     const failed = this.failed ? `, ${this.failed} failed` : '';
-    return `${this.label}: ${this.done}/${this.total} frames${kept}${failed}, ${fps.toFixed(2)} fps, ETA ${eta}`;
+    const files = p > 1 ? ` (${p} passes a frame)` : '';
+    return `${this.label}: ${frames(this.done)}/${frames(this.total)} frames${files}${kept}${failed}, ${fps.toFixed(2)} fps, ETA ${eta}`;
   }
 
   finish(): void {

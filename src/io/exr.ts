@@ -22,6 +22,32 @@ export interface ExrOptions {
    * with alpha 0 (premultiplied light that "over" adds to the plate unchanged) */
   alpha: 'none' | 'derived' | 'zero';
   pixelAspect: number;
+  /** the frame's SMPTE timecode (written as OpenEXR's standard `timeCode` attribute) */
+  timeCode?: ExrTimeCode;
+  /** the sequence's rate (the standard `framesPerSecond` attribute) */
+  framesPerSecond?: { num: number; den: number };
+}
+
+export interface ExrTimeCode {
+  hours: number;
+  minutes: number;
+  seconds: number;
+  frame: number;
+  dropFrame: boolean;
+}
+
+/**
+ * A timecode packed as OpenEXR stores it (ImfTimeCode.h, "packing for 60-field television", the
+ * file's encoding): BCD frame units 0-3, frame tens 4-5, drop-frame flag 6, seconds 8-11 and
+ * 12-14, minutes 16-19 and 20-22, hours 24-27 and 28-29; the user-data word is 0.
+ */
+export function packTimeCode(tc: ExrTimeCode): Buffer {
+  const bcd = (v: number, unitShift: number) => ((v % 10) << unitShift) | (Math.floor(v / 10) << (unitShift + 4));
+  const word = (bcd(tc.frame, 0) | (tc.dropFrame ? 1 << 6 : 0) | bcd(tc.seconds, 8) | bcd(tc.minutes, 16) | bcd(tc.hours, 24)) >>> 0;
+  const b = Buffer.alloc(8);
+  b.writeUInt32LE(word, 0);
+  b.writeUInt32LE(0, 4);
+  return b;
 }
 
 const COMPRESSION_CODE: Record<ExrCompression, number> = { none: 0, zips: 2, zip: 3 };
@@ -150,10 +176,17 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
   w.attr('compression', 'compression', Buffer.from([COMPRESSION_CODE[opts.compression]]));
   w.attr('dataWindow', 'box2i', box2i(0, 0, width - 1, height - 1));
   w.attr('displayWindow', 'box2i', box2i(0, 0, width - 1, height - 1));
+  if (opts.framesPerSecond) {
+    const r = Buffer.alloc(8);
+    r.writeInt32LE(opts.framesPerSecond.num, 0);
+    r.writeUInt32LE(opts.framesPerSecond.den, 4);
+    w.attr('framesPerSecond', 'rational', r);
+  }
   w.attr('lineOrder', 'lineOrder', Buffer.from([0])); // increasing y
   w.attr('pixelAspectRatio', 'float', floats(opts.pixelAspect));
   w.attr('screenWindowCenter', 'v2f', floats(0, 0));
   w.attr('screenWindowWidth', 'float', floats(1));
+  if (opts.timeCode) w.attr('timeCode', 'timecode', packTimeCode(opts.timeCode));
   w.u8(0); // end of header
   const header = w.done();
 

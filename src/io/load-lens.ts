@@ -1,6 +1,7 @@
 // A lens from a preset name or a lens file, for `straylight lens`.
 
 import { existsSync } from 'node:fs';
+import { parse } from 'yaml';
 import { InputError, ShotError } from '../errors.js';
 import type { LensModel } from '../optics/lens.js';
 import { parseLensText } from '../shot/lens-file.js';
@@ -26,4 +27,17 @@ export function loadLens(nameOrFile: string): { lens: LensModel; source: string 
   const { model, diagnostics } = parseLensText(text, shown, nameOrFile.replace(/\.ya?ml$/, ''));
   if (!model) throw new ShotError(diagnostics);
   return { lens: model, source: isPreset ? 'preset' : 'file' };
+}
+
+/**
+ * Whether a file is a lens file rather than a shot: a YAML mapping with `surfaces` and neither
+ * `frame` nor `lights`. Anything unreadable is not (the shot loader then says what is wrong).
+ */
+export function looksLikeLensFile(file: string): boolean {
+  try {
+    const doc = parse(readTextFile(file), { maxAliasCount: 100 }) as unknown;
+    return typeof doc === 'object' && doc !== null && 'surfaces' in doc && !('frame' in doc) && !('lights' in doc);
+  } catch {
+    return false;
+  }
 }

@@ -11,7 +11,9 @@ import type { ResolvedMatte, ResolvedShot } from '../shot/types.js';
 import { expandFramePath } from '../format/frame-path.js';
 import { framesOnDisk } from './read-frame.js';
 
-const CACHE = 8;
+/** Matte frames kept decoded per provider: enough for a frame's shutter samples, within a byte budget. */
+const CACHE_FRAMES = 8;
+export const MATTE_CACHE_BYTES = 256 * 1024 * 1024;
 
 export class MatteProvider {
   private readonly onDisk = new Map<string, number[]>();
@@ -55,7 +57,8 @@ export class MatteProvider {
         v[i] = encoding === 'normalised' ? near + v[i] * (far - near) : encoding === 'inverted' ? far - v[i] * (far - near) : v[i] * scale;
       }
     }
-    if (this.cache.size >= CACHE) this.cache.delete(this.cache.keys().next().value!);
+    const keep = Math.max(2, Math.min(CACHE_FRAMES, Math.floor(MATTE_CACHE_BYTES / (img.values.byteLength || 1))));
+    while (this.cache.size >= keep) this.cache.delete(this.cache.keys().next().value!);
     this.cache.set(key, img);
     return img;
   }

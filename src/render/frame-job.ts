@@ -48,7 +48,7 @@ export function runFrameJob(shot: ResolvedShot, job: FrameJob): FrameDone {
   const start = performance.now();
   const img = renderFrame(shot, job.frame, undefined, undefined, scratch);
   scratch = img;
-  const png = encodeOutput(img, shot.output, shot.frame.pixelAspect);
+  const png = encodeOutput(img, shot.output, shot.frame.pixelAspect, { frame: shot.frame, n: job.frame });
   writeFileAtomic(job.file, png);
   const cells = reduceFrame(img.width, img.height, img.data, 4);
   return { frame: job.frame, file: job.file, bytes: png.length, sha256: sha256(png), ms: performance.now() - start, cells };

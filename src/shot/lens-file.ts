@@ -25,7 +25,7 @@ export function parseLensText(text: string, shownFile: string, defaultName: stri
 export const DEFAULT_COATING: Coating = [quarterWave(1.38, 550)];
 
 /** Keys a lens description has (for "did you mean" when a shot mixes them up). */
-export const LENS_KEYS = ['name', 'note', 'sensor_width', 'f_number_min', 'iris', 'squeeze', 'coating', 'glasses', 'surfaces'];
+export const LENS_KEYS = ['name', 'note', 'sensor_width', 'f_number_min', 'iris', 'squeeze', 'hood', 'coating', 'glasses', 'surfaces'];
 
 /** Read the lens keys of a mapping; the caller declares its own other keys and calls finish(). */
 export function readLens(m: MapField, defaultName: string): LensModel | undefined {
@@ -41,6 +41,8 @@ export function readLens(m: MapField, defaultName: string): LensModel | undefine
   const iris = irisField ? readIris(irisField) : { blades: 6, rotationDeg: 0, roundness: 0 };
   const sq = m.get('squeeze');
   const squeeze = sq ? sq.number({ min: 1, max: 3 }) : 1;
+  const hoodField = m.get('hood');
+  const hood = hoodField ? readHood(hoodField) : undefined;
   const coatingField = m.get('coating');
   const coating = coatingField ? readCoating(coatingField) : DEFAULT_COATING;
   const glassesField = m.get('glasses');
@@ -74,9 +76,20 @@ export function readLens(m: MapField, defaultName: string): LensModel | undefine
       else if (surfaces[surfaces.length - 1].stop) surfacesField!.error('the stop cannot be the last surface: the last gap reaches the sensor');
     }
   }
-  if (!name || note === undefined || !sensorWidthMm || !fNumberMin || !iris || !squeeze || !surfaces) return undefined;
+  if (!name || note === undefined || !sensorWidthMm || !fNumberMin || !iris || !squeeze || !surfaces || (hoodField && !hood)) return undefined;
   if (surfaces.filter((s) => s.stop).length !== 1 || surfaces[surfaces.length - 1].stop) return undefined;
-  return { name, note, surfaces, iris, fNumberMin, sensorWidthMm, squeeze };
+  return { name, note, surfaces, iris, fNumberMin, sensorWidthMm, squeeze, ...(hood ? { hood } : {}) };
+}
+
+/** `none`, or {depth, radius} in mm: the front barrel or hood's opening, ahead of the first vertex. */
+export function readHood(f: Field): { depthMm: number; radiusMm: number } | undefined {
+  if (f.isString()) return f.oneOf(['none'] as const) ? { depthMm: 0, radiusMm: 0 } : undefined;
+  const m = f.map('none, or {depth, radius} in millimetres');
+  if (!m) return undefined;
+  const depthMm = m.require('depth', 'how far the opening sits ahead of the first surface, mm')?.number({ min: 0, max: 1000 });
+  const radiusMm = m.require('radius', "the opening's radius, mm")?.number({ min: 0, minExclusive: true, max: 1000 });
+  m.finish();
+  return depthMm === undefined || radiusMm === undefined ? undefined : { depthMm, radiusMm };
 }
 
 export function readIris(f: Field): Iris | undefined {

@@ -150,7 +150,7 @@ describe('straylight CLI', () => {
     const r = await cli(['--help']);
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/render \[options\] <shot>/);
-    expect(r.stdout).toMatch(/check <shot>/);
+    expect(r.stdout).toMatch(/check \[options\] <file>/);
     expect(r.stdout).toMatch(/still \[options\] <shot>/);
   });
 });

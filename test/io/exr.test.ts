@@ -56,6 +56,33 @@ describe('OpenEXR files', () => {
     expect(out).toContain('white (0.3127 0.329)');
   });
 
+  it("rendered frames carry OpenEXR's standard timeCode and framesPerSecond, frame by frame, as exrheader reads them", async () => {
+    const dir = tempDir();
+    // 29.97 drop-frame: labels 00;00 and 00;01 are skipped at the start of minute 1, so the frame
+    // after 00:00:59;29 is 00:01:00;02 (SMPTE ST 12-1 drop rule)
+    writeFileSync(path.join(dir, 'shot.yaml'), `version: 1
+frame: { width: 8, height: 4, rate: "30000/1001", first: 1, last: 2, timecode: "00:00:59;29" }
+lights: [{ name: a, position: [4, 2], intensity: 0 }]
+output: { path: out/f.####.exr, format: exr }
+`);
+    expect((await cli(['render', path.join(dir, 'shot.yaml'), '--quiet', '--jobs', '1'])).code).toBe(0);
+    const first = tool('exrheader', [path.join(dir, 'out', 'f.0001.exr')]).out;
+    const second = tool('exrheader', [path.join(dir, 'out', 'f.0002.exr')]).out;
+    expect(first).toContain('framesPerSecond (type rational): 30000/1001 (29.97)');
+    expect(first).toContain('timeCode (type timecode):\n    time 00:00:59:29\n    drop frame 1');
+    expect(second).toContain('timeCode (type timecode):\n    time 00:01:00:02\n    drop frame 1');
+    // 24 fps non-drop from the default timecode (the frame number from 00:00:00:00): frame 1 is 00:00:00:01
+    writeFileSync(path.join(dir, 'shot24.yaml'), `version: 1
+frame: { width: 8, height: 4, rate: 24, first: 1, last: 1 }
+lights: [{ name: a, position: [4, 2], intensity: 0 }]
+output: { path: out24/f.####.exr, format: exr }
+`);
+    expect((await cli(['render', path.join(dir, 'shot24.yaml'), '--quiet', '--jobs', '1'])).code).toBe(0);
+    const f24 = tool('exrheader', [path.join(dir, 'out24', 'f.0001.exr')]).out;
+    expect(f24).toContain('framesPerSecond (type rational): 24/1 (24)');
+    expect(f24).toContain('timeCode (type timecode):\n    time 00:00:00:01\n    drop frame 0');
+  });
+
   for (const [type, compression] of [['half', 'none'], ['half', 'zips'], ['half', 'zip'], ['float', 'none'], ['float', 'zip']] as const) {
     it(`oiiotool reads ${type} / ${compression} back to the values written`, () => {
       const f = path.join(tempDir(), 'v.exr');

@@ -17,7 +17,8 @@ import { outputSequences } from '../../render/passes.js';
 import { batchHtml, type BatchReport, type BatchShot } from '../../render/batch-report.js';
 import { VERSION } from '../../version.js';
 import type { CommandContext } from '../context.js';
-import { positiveInt } from '../options.js';
+import { memorySize, positiveInt } from '../options.js';
+import { availableBytes, planWorkers } from '../../render/memory.js';
 import { screenSequences } from '../sequences.js';
 
 export function registerBatch(program: Command, { io, setExit }: CommandContext): void {
@@ -29,7 +30,8 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
     .addOption(new Option('--jobs <n>', 'worker threads per shot (default: the available parallelism)').argParser(positiveInt('--jobs')))
     .option('--force', 'render every frame, even those already there')
     .option('--quiet', 'print nothing but errors and safety warnings')
-    .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean }) => {
+    .addOption(new Option('--max-memory <size>', 'memory each shot\'s render may use, e.g. 8G (default: 80% of what is free)').argParser(memorySize('--max-memory')))
+    .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean; maxMemory?: number }) => {
       if (!opts.report.endsWith('.json')) throw new UsageError(`--report: the file must end in .json, found "${opts.report}"`);
       // the report is the morning's answer: its folder must take it before any shot renders
       checkWritableFolder(path.dirname(path.resolve(opts.report)), "the report's folder");
@@ -46,8 +48,10 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
           const sequences = outputSequences(shot);
           entry.frames *= sequences.length;
           let interrupted = false;
+          const workers = planWorkers(shot, opts.jobs ?? availableParallelism(), opts.maxMemory ?? availableBytes());
+          if (workers.note) entry.warnings.push(workers.note);
           for (const seq of sequences) {
-            const result = await renderSequence(seq.shot, { jobs: opts.jobs ?? availableParallelism(), force: opts.force, signal: io.signal });
+            const result = await renderSequence(seq.shot, { jobs: workers.jobs, force: opts.force, signal: io.signal });
             entry.written += result.written.length;
             entry.skipped += result.skipped.length;
             entry.failed.push(...result.failed);

@@ -10,6 +10,7 @@ import { checkOutputTemplate } from '../../shot/resolve.js';
 import type { AlphaMode, OutputFormat, ResolvedShot } from '../../shot/types.js';
 import { planSequence, refuseForeign, renderSequence, shardFrames } from '../../render/sequence.js';
 import { checkWritableFolder } from '../../io/output-file.js';
+import { availableBytes, planWorkers } from '../../render/memory.js';
 import { outputSequences } from '../../render/passes.js';
 import { FlashAnalyser } from '../../safety/flash.js';
 import { findFfmpeg, movieKind, writeMovie } from '../../review/movie.js';
@@ -17,7 +18,7 @@ import { checkPlateTemplate, compositeTemplate, timecodeOf } from '../../review/
 import { writeComposites } from '../../review/composite.js';
 import type { CommandContext } from '../context.js';
 import { formatFlashReport } from '../flash-report.js';
-import { frameList, parseFrameRange, parseShard, positiveInt } from '../options.js';
+import { frameList, memorySize, parseFrameRange, parseShard, positiveInt } from '../options.js';
 import { Progress, renderRate } from '../progress.js';
 import { screenSequences, writtenTemplate } from '../sequences.js';
 
@@ -33,12 +34,13 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
     .option('--force', 'render every frame, even those the manifest shows are already there')
     .addOption(new Option('--progress <style>', 'progress on stderr: line (default) or json (one JSON object a line, for farm logs)').choices(['line', 'json']))
     .option('--quiet', 'print nothing but errors and safety warnings')
+    .addOption(new Option('--max-memory <size>', 'memory the render may use, e.g. 8G (default: 80% of what the system has free); fewer workers are used if they would not fit').argParser(memorySize('--max-memory')))
     .option('--fail-on-flash', 'exit 5 when flash screening flags the rendered frames')
     .addOption(new Option('--format <format>', "output format, instead of the shot's (an --out ending in .exr also picks exr)").choices(['png16', 'png8', 'exr']))
     .addOption(new Option('--alpha <mode>', "alpha, instead of the shot's: none (add), premultiplied, or emission (exr: over adds)").choices(['none', 'premultiplied', 'emission']))
     .option('--movie <file>', 'then encode a review movie with ffmpeg: .mov (ProRes 4444 with alpha) or .mp4 (H.264)')
     .option('--over <plate>', 'then write review frames of the pass added over this background plate sequence (linear light; NAME.over.####.png), and make any --movie from them')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; failOnFlash?: boolean; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; maxMemory?: number; failOnFlash?: boolean; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
       // review options are checked before any work, so an overnight render does not fail at the end
       if (opts.movie) movieKind(opts.movie);
       const ffmpeg = opts.movie ? findFfmpeg() : undefined;
@@ -53,7 +55,10 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
         template = path.resolve(opts.out);
       }
       const shard = opts.shard ? parseShard(opts.shard) : undefined;
-      const jobs = opts.jobs ?? availableParallelism();
+      // as many workers as asked (or cores), as long as their frames fit in memory
+      const workers = planWorkers(shot, opts.jobs ?? availableParallelism(), opts.maxMemory ?? availableBytes());
+      if (workers.note && !opts.quiet) io.stderr(`render: ${workers.note}\n`);
+      const jobs = workers.jobs;
       let total = shardFrames(frames, shard).length;
       const json = opts.progress === 'json';
       const progress = opts.quiet || json ? undefined : new Progress({ write: io.stderr, isTTY: io.stderrIsTTY }, total, 'render');
@@ -73,7 +78,10 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
       for (const folder of new Set(plans.map((p) => path.dirname(p.template)))) checkWritableFolder(folder);
       if (opts.over) checkWritableFolder(path.dirname(compositeTemplate(template ?? shot.output.template)), 'the review frames\' folder');
       total *= sequences.length;
-      if (progress) progress.total = total;
+      if (progress) {
+        progress.total = total;
+        progress.passes = sequences.length;
+      }
       const result = { written: [] as number[], skipped: [] as number[], failed: [] as { frame: number; error: string; badInput: boolean }[], interrupted: false, manifest: '' };
       for (const seq of sequences) {
         if (result.interrupted) break;

@@ -26,7 +26,7 @@ export function registerStill(program: Command, { io }: CommandContext): void {
       // the file's extension picks the format; the shot's other output settings apply
       const o = shot.output;
       const asked = ext === '.exr' ? { ...o, format: 'exr' as const } : o.format === 'exr' ? { ...o, format: 'png16' as const, transfer: 'linear' as const } : o;
-      const bytes = encodeOutput(renderFrame(shot, opts.frame), asked, shot.frame.pixelAspect);
+      const bytes = encodeOutput(renderFrame(shot, opts.frame), asked, shot.frame.pixelAspect, { frame: shot.frame, n: opts.frame });
       writeOutputFile(out, bytes);
       const { widthPx, heightPx } = shot.frame;
       io.stdout(`${out}: frame ${opts.frame}, ${widthPx}x${heightPx} ${asked.format === 'exr' ? `OpenEXR ${asked.exr.type}` : `${asked.format === 'png8' ? '8' : '16'}-bit PNG, ${asked.transfer}`}\n`);
