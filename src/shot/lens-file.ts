@@ -47,12 +47,16 @@ export function readLens(m: MapField, defaultName: string): LensModel | undefine
   const coating = coatingField ? readCoating(coatingField) : DEFAULT_COATING;
   const glassesField = m.get('glasses');
   const glasses = new Map<string, GlassModel>(Object.entries(CATALOGUE));
+  // glasses defined with a problem (already reported where they are defined): a surface naming
+  // one is not reported again
+  const faulty = new Set<string>();
   if (glassesField) {
     const gm = glassesField.map('a mapping of glass names to {nd, vd} or {sellmeier: {b, c}}');
     if (gm) {
       for (const key of gm.keys()) {
         const g = readGlassDefinition(gm.get(key)!, key);
         if (g) glasses.set(key, g);
+        else faulty.add(key);
       }
       gm.finish();
     }
@@ -62,7 +66,7 @@ export function readLens(m: MapField, defaultName: string): LensModel | undefine
   let surfaces: LensSurface[] | undefined;
   if (list && coating) {
     if (list.length < 2) surfacesField!.error(`expected at least a surface and the stop, found ${list.length}`);
-    const read = list.map((f) => readSurface(f, glasses));
+    const read = list.map((f) => readSurface(f, glasses, faulty));
     if (read.every((s) => s !== undefined)) {
       // surfaces without a coating of their own take the lens's between air and glass, and none
       // between two glasses (a cemented interface)
@@ -166,19 +170,20 @@ function readGlassDefinition(f: Field, name: string): GlassModel | undefined {
   return n === undefined || v === undefined ? undefined : { kind: 'abbe', name, nd: n, vd: v };
 }
 
-function readGlassRef(f: Field, glasses: Map<string, GlassModel>): GlassModel | undefined {
+function readGlassRef(f: Field, glasses: Map<string, GlassModel>, faulty: Set<string>): GlassModel | undefined {
   if (f.isString()) {
     const name = f.scalar as string;
     if (name === 'air') return AIR;
     const g = glasses.get(name);
     if (g) return g;
+    if (faulty.has(name)) return undefined;
     f.oneOf(['air', ...glasses.keys()]); // reports the unknown name, with a hint
     return undefined;
   }
   return readGlassDefinition(f, 'inline glass');
 }
 
-function readSurface(f: Field, glasses: Map<string, GlassModel>): { surface: LensSurface; coating?: Coating } | undefined {
+function readSurface(f: Field, glasses: Map<string, GlassModel>, faulty: Set<string>): { surface: LensSurface; coating?: Coating } | undefined {
   const m = f.map('a surface: {radius, gap, glass, semi_diameter, coating} or {stop: true, gap}');
   if (!m) return undefined;
   const stopField = m.get('stop');
@@ -196,7 +201,7 @@ function readSurface(f: Field, glasses: Map<string, GlassModel>): { surface: Len
   }
   const gapMm = m.require('gap', 'distance to the next surface (the last: to the sensor), mm')?.number({ min: 0, max: 10_000 });
   const gField = m.get('glass');
-  const glass = gField ? readGlassRef(gField, glasses) : AIR;
+  const glass = gField ? readGlassRef(gField, glasses, faulty) : AIR;
   if (isStop && gField && glass && glass.kind !== 'air') gField.error('the stop sits in air');
   const sdField = isStop ? m.get('semi_diameter') : m.require('semi_diameter', 'clear semi-diameter in mm');
   const semiDiameterMm = sdField ? sdField.number({ min: 0, minExclusive: true, max: 1000 }) : 1e6;

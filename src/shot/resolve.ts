@@ -66,8 +66,9 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
   // lights name existing mattes, and have a depth where a depth matte can cover them
   const names = new Set(mattes.map((x) => x.name));
   let ok = true;
+  const lightFields = lightsField!.list()!;
   lights.forEach((l, i) => {
-    const lf = lightsField!.list()![i];
+    const lf = lightFields[i];
     const lm = new MapField(lf);
     if (!lm.has('occluded_by')) l.occludedBy = [...names];
     for (const n of l.occludedBy) {

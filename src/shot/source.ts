@@ -11,6 +11,65 @@ import { closest } from './suggest.js';
 /** Largest number of nodes a document may expand to through aliases (guards alias bombs). */
 export const MAX_EXPANDED_NODES = 200_000;
 
+/** Deepest nesting of collections accepted (a shot needs under ten; the YAML parser recurses). */
+export const MAX_NESTING = 64;
+
+/**
+ * Where a document first nests deeper than `max` (flow brackets, or block indentation levels),
+ * found by a scan of the text before the parser recurses into it. Quoted strings and comments are
+ * skipped; the count is an upper bound of the parser's own nesting, good enough to refuse a
+ * pathological file with a real location.
+ */
+export function tooDeep(text: string, max: number): { line: number; col: number } | undefined {
+  const indents: number[] = [];
+  let flow = 0;
+  let quote = '';
+  let line = 1;
+  let lineStart = 0;
+  let atLineStart = true;
+  for (let i = 0; i < text.length; i++) {
+    const ch = text[i];
+    if (ch === '\n') {
+      line++;
+      lineStart = i + 1;
+      atLineStart = true;
+      if (quote === "'" || quote === '"') continue;
+      quote = '';
+      continue;
+    }
+    if (quote === '#') continue;
+    if (quote) {
+      if (ch === '\\' && quote === '"') i++;
+      else if (ch === quote) quote = '';
+      continue;
+    }
+    if (atLineStart && ch !== ' ') {
+      atLineStart = false;
+      if (ch !== '#' && flow === 0) {
+        const indent = i - lineStart;
+        while (indents.length && indents[indents.length - 1] >= indent) indents.pop();
+        indents.push(indent);
+        // a "- " item opens one more level at the same indentation
+        let k = i;
+        let extra = 0;
+        while (text[k] === '-' && (text[k + 1] === ' ' || text[k + 1] === '\n')) {
+          extra++;
+          k += 2;
+          while (text[k] === ' ') k++;
+        }
+        if (indents.length + extra > max) return { line, col: indent + 1 };
+      }
+    }
+    if (ch === '#' && (i === 0 || /\s/.test(text[i - 1]))) quote = '#';
+    else if (ch === '"' || ch === "'") quote = ch;
+    else if (ch === '[' || ch === '{') {
+      flow++;
+      if (flow + indents.length > max) return { line, col: i - lineStart + 1 };
+    } else if (ch === ']' || ch === '}') flow = Math.max(0, flow - 1);
+  }
+  return undefined;
+}
+
 export interface SourceContext {
   file: string;
   lines: LineCounter;
@@ -24,6 +83,11 @@ export function parseYamlSource(
   file: string,
 ): { ctx: SourceContext; root: Field | undefined } {
   const lines = new LineCounter();
+  const deep = tooDeep(text, MAX_NESTING);
+  if (deep) {
+    const diagnostics = [{ loc: { file, ...deep }, path: '', message: `the document nests deeper than ${MAX_NESTING} levels here (a shot needs fewer than 10); refusing it` }];
+    return { ctx: { file, lines, doc: new Document(), diagnostics }, root: undefined };
+  }
   const doc = parseDocument(text, { lineCounter: lines, uniqueKeys: true, prettyErrors: false });
   const ctx: SourceContext = { file, lines, doc, diagnostics: [] };
   for (const e of doc.errors) {

@@ -169,3 +169,39 @@ describe('shot validation', () => {
     expect(shot.lights[0].position.map((k) => k.value)).toEqual([[10, 10], [20, 20]]);
   });
 });
+
+describe('limits that keep check fast and honest', () => {
+  it('refuses more lights than a shot holds, at the list, in one message', () => {
+    const lights = Array.from({ length: 1001 }, (_, i) => `  - { name: l${i}, position: [${i}, 10], intensity: 1 }`).join('\n');
+    const text = `version: 1\nframe: { width: 64, height: 48, rate: 24, first: 1, last: 1 }\nlights:\n${lights}\noutput: { path: f.####.png }\n`;
+    expect(problems(text)).toEqual(['bad.yaml:4:3: lights: a shot holds at most 1000 lights, found 1001; split the lights over several shots and add their passes']);
+    // 1000 are fine
+    expect(problems(text.replace(/\n  - \{ name: l1000,[^\n]*/, ''))).toEqual([]);
+  });
+
+  it('a glass with n_d below 1 says so once, not again at each surface that uses it', () => {
+    const text = `version: 1
+frame: { width: 64, height: 48, rate: 24, first: 1, last: 1 }
+lights: [{ name: a, position: [3, 3], intensity: 1 }]
+lens:
+  glasses: { odd: { nd: 0.8, vd: 40 } }
+  surfaces:
+    - { radius: 40, gap: 5, glass: odd, semi_diameter: 12 }
+    - { radius: -200, gap: 4, semi_diameter: 12 }
+    - { stop: true, gap: 2 }
+    - { radius: 100, gap: 3, glass: odd, semi_diameter: 10 }
+    - { radius: -100, gap: 40, semi_diameter: 10 }
+output: { path: f.####.png }
+`;
+    expect(problems(text)).toEqual(['bad.yaml:5:25: lens.glasses.odd.nd: expected a number from 1.2 to 2.5, found 0.8']);
+  });
+
+  it('a pathologically nested document gets our own message at the place it gets too deep', () => {
+    const flow = `version: 1\nframe: ${'['.repeat(5000)}${']'.repeat(5000)}\n`;
+    expect(problems(flow)).toEqual(['bad.yaml:2:71: the document nests deeper than 64 levels here (a shot needs fewer than 10); refusing it']);
+    const block = `version: 1\nframe:\n${Array.from({ length: 100 }, (_, i) => `${'  '.repeat(i + 1)}k${i}:`).join('\n')}\n`;
+    expect(problems(block)).toEqual(['bad.yaml:65:127: the document nests deeper than 64 levels here (a shot needs fewer than 10); refusing it']);
+    // the demo-sized nesting of a real shot passes the scan
+    expect(problems(MINIMAL_SHOT)).toEqual([]);
+  });
+});

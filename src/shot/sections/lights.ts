@@ -8,7 +8,7 @@ import type { Key, PathShape } from '../../timeline/track.js';
 import { MapField, type Field } from '../source.js';
 import { parseTrackCsv } from '../track-csv.js';
 import type { IntensityUnit, ResolvedLight } from '../types.js';
-import type { ResolveContext } from './context.js';
+import { MAX_LIGHTS, type ResolveContext } from './context.js';
 import { positionKeys, resolveColour, scalarKeys } from './keys.js';
 
 export const DEFAULT_RADIUS_PX = 4;
@@ -17,6 +17,7 @@ export function resolveLights(ctx: ResolveContext, f: Field): ResolvedLight[] | 
   const items = f.list('a list of lights');
   if (!items) return undefined;
   if (items.length === 0) return f.error('expected at least one light, found an empty list');
+  if (items.length > MAX_LIGHTS) return f.error(`a shot holds at most ${MAX_LIGHTS} lights, found ${items.length}; split the lights over several shots and add their passes`);
   const names = new Set<string>();
   const out = items.map((item) => {
     const light = resolveLight(ctx, item);
