@@ -200,7 +200,7 @@ output: { path: f.####.png }
     const flow = `version: 1\nframe: ${'['.repeat(5000)}${']'.repeat(5000)}\n`;
     expect(problems(flow)).toEqual(['bad.yaml:2:71: the document nests deeper than 64 levels here (a shot needs fewer than 10); refusing it']);
     const block = `version: 1\nframe:\n${Array.from({ length: 100 }, (_, i) => `${'  '.repeat(i + 1)}k${i}:`).join('\n')}\n`;
-    expect(problems(block)).toEqual(['bad.yaml:65:127: the document nests deeper than 64 levels here (a shot needs fewer than 10); refusing it']);
+    expect(problems(block)).toEqual(['bad.yaml:66:129: the document nests deeper than 64 levels here (a shot needs fewer than 10); refusing it']);
     // the demo-sized nesting of a real shot passes the scan
     expect(problems(MINIMAL_SHOT)).toEqual([]);
   });
