@@ -15,6 +15,7 @@ import { FloatImage } from '../src/raster/image.js';
 import { renderFrame } from '../src/render/render-frame.js';
 import { parseLensText } from '../src/shot/lens-file.js';
 import { resolveShot } from '../src/shot/resolve.js';
+import { planWorkers } from '../src/render/memory.js';
 import type { ResolvedShot } from '../src/shot/types.js';
 
 const RUNS = Number(process.env.BENCH_RUNS ?? 5);
@@ -161,6 +162,16 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
 {
   const r = sequenceRun(2, 3840, 2160, 6);
   rows.push(['peak RSS, 3840x2160 sequence, 2 workers (target < 1 GiB)', `${r.maxRssMiB.toFixed(0)} MiB`]);
+  // 8K, against the memory planner's estimate (an upper bound: render lowers --jobs by it)
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  try {
+    const plan = planWorkers(flareShot(7680, 4320, 2, dir), 2, Infinity);
+    const r8 = sequenceRun(2, 7680, 4320, 2);
+    const est = (plan.main + 2 * plan.perWorker) / 2 ** 20;
+    rows.push(['peak RSS, 7680x4320 sequence, 2 workers, vs the planner\'s estimate', `${r8.maxRssMiB.toFixed(0)} MiB (estimate ${est.toFixed(0)} MiB, x${(est / r8.maxRssMiB).toFixed(2)})`]);
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
 }
 
 // --- starburst kernel and the light-centred elements at 1920x1080 and 3840x2160
@@ -218,6 +229,18 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
     const read = time(() => decodeExr(zipBytes), runs);
     rows.push([`${w}x${h}: EXR half ZIP write vs 16-bit PNG; EXR read`, `${ms(exr)} vs ${ms(png)} (x${(exr / png).toFixed(2)}); read ${ms(read)}`]);
   }
+}
+
+// --- validation: resolving a shot of 100 and of 1,000 lights (the cap), YAML parse included;
+// linear validation keeps the ratio near 10
+{
+  const lightsShot = (n: number) =>
+    `version: 1\nframe: { width: 1920, height: 1080, rate: 24, first: 1, last: 48 }\nlights:\n${Array.from({ length: n }, (_, i) => `  - { name: l${i}, position: [${i % 1920}, ${i % 1080}], intensity: 3 }`).join('\n')}\noutput: { path: "f.####.png" }\n`;
+  const t100 = lightsShot(100);
+  const t1000 = lightsShot(1000);
+  const a = time(() => resolveShot(t100, 'bench.yaml', { readText: () => '' }));
+  const b = time(() => resolveShot(t1000, 'bench.yaml', { readText: () => '' }));
+  rows.push(['check: resolve a shot of 100 vs 1,000 lights (the cap)', `${ms(a)} vs ${ms(b)} (x${(b / a).toFixed(1)})`]);
 }
 
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
