@@ -86,3 +86,29 @@ export class ToolMissingError extends StraylightError {
     super(message, ExitCode.toolMissing);
   }
 }
+
+/** Why a file could not be read, in plain words (never a system or library message). */
+export function whyNotReadable(e: unknown): string {
+  const err = e as NodeJS.ErrnoException;
+  switch (err.code) {
+    case 'ENOENT':
+      return 'no such file';
+    case 'EACCES':
+    case 'EPERM':
+      return 'permission denied';
+    case 'EISDIR':
+      return 'a folder, not a file';
+    case 'ENOTDIR':
+      return 'a part of the path is a file, not a folder';
+    case 'EIO':
+      return 'the device could not read it';
+    case 'EFBIG':
+      return err.message;
+    case 'ELOOP':
+      return 'a loop of symbolic links';
+    case 'ENAMETOOLONG':
+      return 'the name is too long';
+    default:
+      return err.code ? `the system refused it (${err.code})` : 'it cannot be read';
+  }
+}

@@ -2,7 +2,7 @@
 
 import { existsSync } from 'node:fs';
 import { parse } from 'yaml';
-import { InputError, ShotError } from '../errors.js';
+import { InputError, ShotError, whyNotReadable } from '../errors.js';
 import type { LensModel } from '../optics/lens.js';
 import { parseLensText } from '../shot/lens-file.js';
 import { closest } from '../shot/suggest.js';
@@ -21,7 +21,7 @@ export function loadLens(nameOrFile: string): { lens: LensModel; source: string 
   try {
     text = readTextFile(file);
   } catch (e) {
-    throw new InputError(`${file}: cannot read the lens file: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+    throw new InputError(`${file}: cannot read the lens file: ${whyNotReadable(e)}`);
   }
   const shown = isPreset ? `lenses/${nameOrFile}.yaml` : nameOrFile;
   const { model, diagnostics } = parseLensText(text, shown, nameOrFile.replace(/\.ya?ml$/, ''));

@@ -1,7 +1,7 @@
 // Reading a shot file from disk: the file-system edge of shot/resolve.
 
 import { readFileSync, statSync } from 'node:fs';
-import { InputError, ShotError } from '../errors.js';
+import { InputError, ShotError, whyNotReadable } from '../errors.js';
 import { checkMattes } from './matte-provider.js';
 import { resolveShot } from '../shot/resolve.js';
 import { presetNames, presetPath } from './presets.js';
@@ -22,9 +22,7 @@ export function loadShot(file: string): ResolvedShot {
   try {
     text = readTextFile(file);
   } catch (e) {
-    const err = e as NodeJS.ErrnoException;
-    const why = err.code === 'ENOENT' ? 'no such file' : err.code === 'EFBIG' ? err.message : (err.code ?? err.message);
-    throw new InputError(`${file}: cannot read the shot file: ${why}`);
+    throw new InputError(`${file}: cannot read the shot file: ${whyNotReadable(e)}`);
   }
   if (text.includes('\u0000') || text.includes('\ufffd')) {
     throw new InputError(`${file}: not a text file (a YAML shot file was expected)`);

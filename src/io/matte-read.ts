@@ -7,6 +7,7 @@ import path from 'node:path';
 import pngjs from 'pngjs';
 import { decodeExr, ExrFormatError, readExrHeader } from '../format/exr-read.js';
 import type { MatteImage } from '../occlusion/matte.js';
+import { whyNotReadable } from '../errors.js';
 
 const { PNG } = pngjs;
 
@@ -30,21 +31,9 @@ export function matteFormats(): string[] {
 /** A matte file that cannot be used, said in our words (never a decoder library's message). */
 export class MatteFileError extends Error {}
 
-/** A file-system error while reading, in plain words. */
-function whyNotReadable(e: unknown): string | undefined {
-  switch ((e as NodeJS.ErrnoException).code) {
-    case 'ENOENT':
-      return 'no such file';
-    case 'EACCES':
-    case 'EPERM':
-      return 'permission denied';
-    case 'EISDIR':
-      return 'a folder, not a file';
-    case 'EIO':
-      return 'the device could not read it';
-    default:
-      return undefined;
-  }
+/** A file-system error while reading, in plain words; undefined when it is not one. */
+function fsProblem(e: unknown): string | undefined {
+  return (e as NodeJS.ErrnoException).code ? whyNotReadable(e) : undefined;
 }
 
 export function decodeMatte(file: string, channel: MatteChannel, kind: 'alpha' | 'depth'): MatteImage {
@@ -55,7 +44,7 @@ export function decodeMatte(file: string, channel: MatteChannel, kind: 'alpha' |
     return decode(file, channel, kind);
   } catch (e) {
     if (e instanceof MatteFileError || e instanceof ExrFormatError) throw new MatteFileError(e.message);
-    const why = whyNotReadable(e);
+    const why = fsProblem(e);
     if (why) throw new MatteFileError(why);
     // anything a decoder library throws means the bytes are not what the name says
     throw new MatteFileError(ext === '.png' ? 'not a readable PNG (damaged or truncated)' : `not a readable ${ext} file (damaged or truncated)`);
@@ -109,7 +98,7 @@ export function matteFrameSize(file: string, channel?: MatteChannel, kind: 'alph
     throw new MatteFileError(`no matte reader for ${ext} files (known: ${matteFormats().join(', ')})`);
   } catch (e) {
     if (e instanceof MatteFileError || e instanceof ExrFormatError) throw new MatteFileError(e.message);
-    throw new MatteFileError(whyNotReadable(e) ?? 'cannot be read');
+    throw new MatteFileError(fsProblem(e) ?? 'cannot be read');
   }
 }
 

@@ -90,12 +90,16 @@ export function parseYamlSource(
   }
   const doc = parseDocument(text, { lineCounter: lines, uniqueKeys: true, prettyErrors: false });
   const ctx: SourceContext = { file, lines, doc, diagnostics: [] };
+  const seen = new Set<string>();
   for (const e of doc.errors) {
-    const pos = e.linePos?.[0] ?? { line: 1, col: 1 };
+    // one message a place: the parser often reports one slip several ways at the same spot
+    const pos = e.pos ? lines.linePos(e.pos[0]) : { line: 1, col: 1 };
+    if (seen.has(`${pos.line}:${pos.col}`)) continue;
+    seen.add(`${pos.line}:${pos.col}`);
     ctx.diagnostics.push({
       loc: { file, line: pos.line, col: pos.col },
       path: '',
-      message: `YAML syntax: ${e.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '')}`,
+      message: `YAML syntax: ${yamlProblem(e.code)}`,
     });
   }
   if (ctx.diagnostics.length > 0) return { ctx, root: undefined };
@@ -113,6 +117,30 @@ export function parseYamlSource(
     return { ctx, root: undefined };
   }
   return { ctx, root: new Field(ctx, doc.contents as YamlNode, '') };
+}
+
+/** The YAML parser's error codes in our words (the parser's own sentences never reach a user). */
+const YAML_PROBLEMS: Record<string, string> = {
+  MISSING_CHAR: 'a [ ], { } or quoted string is not closed (or not indented under its key)',
+  BAD_INDENT: 'the indentation here does not line up with the lines around it (or a [ ] or { } before it is not closed)',
+  TAB_AS_INDENT: 'a tab is used for indentation; indent with spaces',
+  DUPLICATE_KEY: 'this key appears twice in one mapping',
+  BLOCK_AS_IMPLICIT_KEY: 'a key cannot hold a nested block here (a missing colon, or a value on the wrong line?)',
+  MULTILINE_IMPLICIT_KEY: 'a key runs over more than one line (a missing colon or quote?)',
+  UNEXPECTED_TOKEN: 'unexpected text here (a missing colon or comma, or a stray character?)',
+  BLOCK_IN_FLOW: 'an indented block inside [ ] or { }; write it inline or drop the brackets',
+  BAD_SCALAR_START: 'a value cannot start with this character; put it in quotes',
+  BAD_DQ_ESCAPE: 'an unknown backslash escape in a double-quoted string',
+  MULTIPLE_DOCS: 'more than one document (---) in one file',
+  BAD_ALIAS: 'an alias (*name) with no anchor (&name) before it',
+  ALIAS_PROPS: 'an alias (*name) cannot carry a tag or anchor',
+  MULTIPLE_ANCHORS: 'two anchors (&name) on one value',
+  MULTIPLE_TAGS: 'two tags (!tag) on one value',
+  NON_STRING_KEY: 'a key must be a plain word or string',
+};
+
+function yamlProblem(code: string): string {
+  return YAML_PROBLEMS[code] ?? 'this is not valid YAML here';
 }
 
 /** Node count after alias expansion, memoised per anchored node so the count itself is linear. */

@@ -96,7 +96,7 @@ describe('shot validation', () => {
       'bad.yaml:11:12: lights[0].track: a light takes either "position" keys or a "track" file, not both',
     ]],
     ['a missing track file', shotWith('position: [32, 24]', 'track: nowhere.csv'), [
-      expect.stringMatching(/^bad\.yaml:10:12: lights\[0\]\.track: cannot read track file \/.*\/nowhere\.csv: ENOENT$/) as unknown as string,
+      expect.stringMatching(/^bad\.yaml:10:12: lights\[0\]\.track: cannot read track file \/.*\/nowhere\.csv: no such file$/) as unknown as string,
     ]],
     ['a bad number inside a track CSV points into the CSV', shotWith('position: [32, 24]', 'track: bad-value.csv'), [
       expect.stringMatching(/bad-value\.csv:3:3: x: expected a number, found "x"$/) as unknown as string,
@@ -134,8 +134,14 @@ describe('shot validation', () => {
     ['a future format version', shotWith('version: 1', 'version: 2'), [
       'bad.yaml:1:10: version: expected version 1, found 2',
     ]],
-    ['broken YAML syntax', 'a: [1, 2\n', [
-      'bad.yaml:1:1: YAML syntax: Flow sequence in block collection must be sufficiently indented and end with a ]',
+    ['broken YAML syntax in our words, where it is', 'a: [1, 2\n', [
+      'bad.yaml:2:1: YAML syntax: the indentation here does not line up with the lines around it (or a [ ] or { } before it is not closed)',
+    ]],
+    ['a tab used for indentation, at its line', 'version: 1\nframe:\n\twidth: 3\n', [
+      'bad.yaml:3:1: YAML syntax: a tab is used for indentation; indent with spaces',
+    ]],
+    ['a key given twice, at the second', 'version: 1\nversion: 2\n', [
+      'bad.yaml:2:1: YAML syntax: this key appears twice in one mapping',
     ]],
     ['an empty file', '', ['bad.yaml:1:1: the file is empty']],
     ['an alias bomb is refused before expansion', bomb, [

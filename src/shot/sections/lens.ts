@@ -2,6 +2,7 @@
 // lens keys inline, and the f-number keys.
 
 import path from 'node:path';
+import { whyNotReadable } from '../../errors.js';
 import { LINEAR } from '../../timeline/easing.js';
 import type { Key } from '../../timeline/track.js';
 import { LENS_KEYS, parseLensText, readLens } from '../lens-file.js';
@@ -61,7 +62,7 @@ export function resolveLensFile(ctx: ResolveContext, at: Field, abs: string, sho
   try {
     text = ctx.reader.readText(abs);
   } catch (e) {
-    return at.error(`cannot read lens file ${abs}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+    return at.error(`cannot read lens file ${abs}: ${whyNotReadable(e)}`);
   }
   const { model, diagnostics } = parseLensText(text, shown, path.basename(abs, '.yaml'));
   ctx.diagnostics.push(...diagnostics);

@@ -2,6 +2,7 @@
 // occlusion settings and depth.
 
 import path from 'node:path';
+import { whyNotReadable } from '../../errors.js';
 import { LINEAR } from '../../timeline/easing.js';
 import type { Vec2 } from '../../timeline/path.js';
 import type { Key, PathShape } from '../../timeline/track.js';
@@ -108,7 +109,7 @@ export function resolveTrack(ctx: ResolveContext, f: Field, intensityRule: { min
   try {
     text = ctx.reader.readText(abs);
   } catch (e) {
-    return f.error(`cannot read track file ${abs}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+    return f.error(`cannot read track file ${abs}: ${whyNotReadable(e)}`);
   }
   const shown = path.isAbsolute(rel) ? rel : path.join(ctx.shownDir, rel);
   const csv = parseTrackCsv(text, shown, ctx.diagnostics);
