@@ -42,7 +42,8 @@ export function addStarburst(img: FloatImage, k: StarburstKernel, s: StarburstSp
 function binRow(img: FloatImage, rgb: Float32Array, n: number, by: number, xPx: number, yPx: number, binX: number, binY: number, er: number, eg: number, eb: number): void {
   const h = n / 2;
   const d = img.data;
-  const fy = yPx + (by + 0.5 - h) * binY - 0.5;
+  // bin n/2 (zero frequency) lands on the light: bin by's centre is (by - n/2) bins from it
+  const fy = yPx + (by - h) * binY - 0.5;
   const iy = Math.floor(fy);
   const ty = fy - iy;
   if (iy < -1 || iy >= img.height) return;
@@ -50,7 +51,7 @@ function binRow(img: FloatImage, rgb: Float32Array, n: number, by: number, xPx: 
     const kk = (by * n + bx) * 3;
     const g = rgb[kk + 1];
     if (g === 0 && rgb[kk] === 0 && rgb[kk + 2] === 0) continue;
-    const fx = xPx + (bx + 0.5 - h) * binX - 0.5;
+    const fx = xPx + (bx - h) * binX - 0.5;
     const ix = Math.floor(fx);
     const tx = fx - ix;
     if (ix < -1 || ix >= img.width) continue;
@@ -77,12 +78,13 @@ function binRow(img: FloatImage, rgb: Float32Array, n: number, by: number, xPx: 
 /** Pixel row y reading the kernel bilinearly (bins larger than pixels). */
 function pixelRow(d: Float32Array, width: number, y: number, x0: number, x1: number, rgb: Float32Array, n: number, xPx: number, yPx: number, binX: number, binY: number, scale: number, energy: readonly [number, number, number]): void {
   const h = n / 2;
-  const fy = (y + 0.5 - yPx) / binY + h - 0.5;
+  // the pixel centre's place in bin-index coordinates (bin k's centre at k; the light at n/2)
+  const fy = (y + 0.5 - yPx) / binY + h;
   const ky = Math.floor(fy);
   if (ky < 0 || ky + 1 >= n) return;
   const ty = fy - ky;
   for (let x = x0; x <= x1; x++) {
-    const fx = (x + 0.5 - xPx) / binX + h - 0.5;
+    const fx = (x + 0.5 - xPx) / binX + h;
     const kx = Math.floor(fx);
     if (kx < 0 || kx + 1 >= n) continue;
     const tx = fx - kx;

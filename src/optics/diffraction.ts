@@ -98,10 +98,8 @@ export interface StarburstKernel {
   rgb: Float32Array;
 }
 
-/** Bilinear sample of an n x n plane at bin coordinates (x, y) centred on n/2; 0 outside. */
-function bilinear(p: Float64Array, n: number, x: number, y: number): number {
-  const fx = x - 0.5;
-  const fy = y - 0.5;
+/** Bilinear sample of an n x n plane at bin-index coordinates (bin i's centre is at i); 0 outside. */
+function bilinear(p: Float64Array, n: number, fx: number, fy: number): number {
   const x0 = Math.floor(fx);
   const y0 = Math.floor(fy);
   if (x0 < 0 || y0 < 0 || x0 + 1 >= n || y0 + 1 >= n) return 0;
@@ -117,12 +115,14 @@ export function starburstKernel(iris: Iris, opts: { n?: number; pupilCells?: num
   const pupilCells = opts.pupilCells ?? n / 8;
   const p = powerSpectrum(irisMask(iris, n, pupilCells), n);
   const rgb = new Float32Array(n * n * 3);
+  // zero frequency is bin n/2 (whose centre, not its corner, is the light's image): the taper
+  // and each wavelength's magnification are centred on it, so every channel's pattern is too
   const h = n / 2;
   // the grid ends where the pattern does not: taper the outer quarter smoothly to zero (cos^2) so
   // no square edge shows at high dynamic range; energy is renormalised below
   for (let y = 0; y < n; y++) {
     for (let x = 0; x < n; x++) {
-      const r = Math.hypot(x + 0.5 - h, y + 0.5 - h) / h;
+      const r = Math.hypot(x - h, y - h) / h;
       const w = r <= 0.75 ? 1 : r >= 1 ? 0 : Math.cos(((r - 0.75) / 0.25) * (Math.PI / 2)) ** 2;
       p[y * n + x] *= w;
     }
@@ -134,7 +134,7 @@ export function starburstKernel(iris: Iris, opts: { n?: number; pupilCells?: num
     let sum = 0;
     for (let y = 0; y < n; y++) {
       for (let x = 0; x < n; x++) {
-        const v = bilinear(p, n, h + (x + 0.5 - h) / m, h + (y + 0.5 - h) / m);
+        const v = bilinear(p, n, h + (x - h) / m, h + (y - h) / m);
         plane[y * n + x] = v;
         sum += v;
       }

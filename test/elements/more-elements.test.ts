@@ -2,7 +2,9 @@
 // when the light is off frame (energy leaves the frame, it is not renormalised), and dust is
 // deterministic for a seed.
 
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { presetNames, presetPath } from '../../src/io/presets.js';
 import { addDust, dustTexture } from '../../src/elements/dust.js';
 import { addStarburst } from '../../src/elements/starburst.js';
 import { addStreak, addVeil } from '../../src/elements/streak.js';
@@ -29,6 +31,92 @@ describe('starburst energy', () => {
     expect(img.channelSums()[1]).toBeGreaterThan(0.45);
     expect(img.channelSums()[1]).toBeLessThan(0.55);
   });
+});
+
+describe('starburst position', () => {
+  // |F|^2 of a real pupil is centrosymmetric about zero frequency (Goodman, Fraunhofer
+  // diffraction), so the pattern's energy centroid is the light's image, in every channel and at
+  // every wavelength's magnification
+  it('the kernel is centred on its zero-frequency bin (n/2) in every channel', () => {
+    const k = starburstKernel({ blades: 5, rotationDeg: 10, roundness: 0 }, { n: 128, pupilCells: 16, wavelengths: 9 });
+    for (let c = 0; c < 3; c++) {
+      let sx = 0;
+      let sy = 0;
+      let s = 0;
+      for (let y = 0; y < k.n; y++) {
+        for (let x = 0; x < k.n; x++) {
+          const v = k.rgb[(y * k.n + x) * 3 + c];
+          sx += v * x;
+          sy += v * y;
+          s += v;
+        }
+      }
+      expect(Math.abs(sx / s - k.n / 2)).toBeLessThan(0.01);
+      expect(Math.abs(sy / s - k.n / 2)).toBeLessThan(0.01);
+    }
+  });
+
+  for (const binPx of [0.3, 1, 2.5, 6]) {
+    it(`lands centred on the light in every channel with ${binPx} px bins (energy centroid within 0.05 px)`, () => {
+      const img = new FloatImage(1200, 1200);
+      const at = { xPx: 600.3, yPx: 599.6 };
+      addStarburst(img, kernel, { ...at, energy: [5, 3, 1], binPx }, 1);
+      for (let c = 0; c < 3; c++) {
+        let sx = 0;
+        let sy = 0;
+        let s = 0;
+        for (let y = 0; y < img.height; y++) {
+          for (let x = 0; x < img.width; x++) {
+            const v = img.data[(y * img.width + x) * 4 + c];
+            // a pixel's centre is at (x + 0.5, y + 0.5) (README, Conventions)
+            sx += v * (x + 0.5);
+            sy += v * (y + 0.5);
+            s += v;
+          }
+        }
+        expect(Math.abs(sx / s - at.xPx)).toBeLessThan(0.05);
+        expect(Math.abs(sy / s - at.yPx)).toBeLessThan(0.05);
+      }
+    });
+  }
+});
+
+describe('starburst position through the renderer', () => {
+  for (const [fNumber, size] of [[8, 200], [16, 200], [4, 1000]] as const) {
+    it(`sits on the light at f/${fNumber}, size ${size}: every channel's centroid within 0.05 px`, async () => {
+      const { resolveShot } = await import('../../src/shot/resolve.js');
+      const { renderFrame } = await import('../../src/render/render-frame.js');
+      // the light at the frame's centre, so the frame crops the pattern symmetrically
+      const shot = resolveShot(
+        `version: 1
+frame: { width: 960, height: 540, rate: 24, first: 1, last: 1 }
+lights: [{ name: a, position: [480, 270], intensity: 8 }]
+lens: { preset: triplet-50, f_number: ${fNumber} }
+flare: { core: { enabled: false }, glow: { enabled: false }, ghosts: { enabled: false }, starburst: { size: ${size} } }
+output: { path: "f.####.png" }
+`,
+        's.yaml',
+        { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath },
+      );
+      const img = renderFrame(shot, 1);
+      for (let c = 0; c < 3; c++) {
+        let sx = 0;
+        let sy = 0;
+        let s = 0;
+        for (let y = 0; y < img.height; y++) {
+          for (let x = 0; x < img.width; x++) {
+            const v = img.data[(y * img.width + x) * 4 + c];
+            sx += v * (x + 0.5);
+            sy += v * (y + 0.5);
+            s += v;
+          }
+        }
+        expect(s).toBeGreaterThan(0);
+        expect(Math.abs(sx / s - 480)).toBeLessThan(0.05);
+        expect(Math.abs(sy / s - 270)).toBeLessThan(0.05);
+      }
+    });
+  }
 });
 
 describe('streak energy', () => {
