@@ -32,6 +32,8 @@ export interface RankedGhost extends GhostPair {
   a: number;
   /** estimated peak irradiance over the irradiance entering the lens (on axis) */
   strength: number;
+  /** R_i R_j at normal incidence, 550 nm */
+  reflectance: number;
   /** linear RGB tint of R_i R_j at normal incidence, largest channel 1 */
   tint: [number, number, number];
   /** for each stop crossing: y_stop = A y + B u from the entrance plane (550 nm) */
@@ -107,7 +109,7 @@ export function prepareLens(lensIn: LensModel, quality: GhostQuality, threshold:
     // the crossing that limits the bundle most (largest |a_c|) sets where it enters
     const limiting = crossings.reduce((best, c) => (Math.abs(c.a) > Math.abs(best.a) ? c : best), crossings[0]);
     const entryShift = limiting && Math.abs(limiting.a) > 1e-9 ? limiting.b / limiting.a : 0;
-    return { ...pair, k: (m[1] - m[0] * entryShift) / f, a: m[0], strength, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [], faintPlans: [], faintColour: [1, 1, 1] };
+    return { ...pair, k: (m[1] - m[0] * entryShift) / f, a: m[0], strength, reflectance: r550, tint: tint.map((t) => t / tmax) as [number, number, number], stopCrossings: crossings, plans: [], faintPlans: [], faintColour: [1, 1, 1] };
   });
   ranked.sort((x, y) => y.strength - x.strength || x.i - y.i || x.j - y.j);
   const faintSamples = spectralSamples(q.faintWavelengths);

@@ -5,16 +5,25 @@ import { FloatImage } from '../raster/image.js';
 import { drawLine, drawPolyline, fill, type Rgb } from '../raster/draw.js';
 import { prepareLens, type LensSystem } from './ghost-system.js';
 import { ghostPath, vertexZ, type LensModel } from './lens.js';
-import { RayHit, planPath, tracePoints } from './trace.js';
+import { RayHit, planPath, tracePoints, traceRay } from './trace.js';
 
 export interface GhostRow {
   /** 1-based surface numbers, front to back: reflected first at `first`, then at `second` */
   first: number;
   second: number;
   k: number;
-  /** paraxial radius of the ghost on the sensor at the widest aperture, mm */
+  /**
+   * radius of the ghost on the sensor for a light on the axis at the widest aperture, mm: from the
+   * rays that get through the barrel, the hood and the stop (as the renderer draws it); 0 when the
+   * barrel cuts it away entirely
+   */
   radiusMm: number;
+  /** the paraxial radius, which ignores the clear apertures, mm */
+  paraxialRadiusMm: number;
+  /** paraxial peak over entering irradiance, times the path's transmission (as rendered) */
   strength: number;
+  /** the transmission of the path's refractions at normal incidence (coatings included) */
+  transmission: number;
   tint: string;
   tintRgb: [number, number, number];
 }
@@ -44,19 +53,47 @@ export function tintName([r, g, b]: readonly number[]): string {
   return names.find(([limit]) => h < limit)![1];
 }
 
+/** Rays across the front (a meridional line) traced for each ghost's clipped size. */
+const SIZE_RAYS = 401;
+
 export function lensReport(lens: LensModel, system: LensSystem = prepareLens(lens, 'medium', 0)): LensReport {
   const ep = system.focalLengthMm / lens.fNumberMin;
+  const stopRadius = (ep / 2) * system.stopRatio;
+  // traced as the renderer traces: through the lens with its hood, parallel rays from in front
+  const traced = system.lens;
+  const front = traced.surfaces[0].semiDiameterMm * 1.25;
+  const launch = Math.max(traced.surfaces[0].semiDiameterMm + 10, (traced.hood?.depthMm ?? 0) + 1);
+  const hit = new RayHit();
+  const through = () => {
+    if (hit.vignette > 1 || hit.margin < 0) return false;
+    for (let c = 0; c < hit.stopCount; c++) if (hit.stopU[c] ** 2 + hit.stopV[c] ** 2 > 1) return false;
+    return true;
+  };
   const ghosts = system.ranked.map((g) => {
     const limiting = g.stopCrossings.reduce((best, c) => (Math.abs(c.a) > Math.abs(best.a) ? c : best), g.stopCrossings[0]);
-    const stopRadius = (ep / 2) * system.stopRatio;
     const entryRadius = limiting && Math.abs(limiting.a) > 1e-9 ? stopRadius / Math.abs(limiting.a) : ep / 2;
     const hex = g.tint.map((c) => Math.round(Math.max(0, Math.min(1, c)) * 255).toString(16).padStart(2, '0')).join('');
+    const plan = planPath(traced, ghostPath(traced, g), 550, stopRadius);
+    // the axial ray meets every surface at normal incidence: its throughput is R_i R_j times the
+    // transmissions of the path's refractions
+    const axial = traceRay(plan, 0, 0, -launch, 0, 0, 1, hit) && g.reflectance > 0 ? hit.throughput / g.reflectance : 1;
+    // the ghost of a light on the axis, as far across as the rays that get through reach
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (let s = 0; s < SIZE_RAYS; s++) {
+      const x = -front + (2 * front * s) / (SIZE_RAYS - 1);
+      if (!traceRay(plan, x, 0, -launch, 0, 0, 1, hit) || !through()) continue;
+      lo = Math.min(lo, hit.x);
+      hi = Math.max(hi, hit.x);
+    }
     return {
       first: g.i + 1,
       second: g.j + 1,
       k: g.k,
-      radiusMm: Math.abs(g.a) * entryRadius,
-      strength: g.strength,
+      radiusMm: hi >= lo ? (hi - lo) / 2 : 0,
+      paraxialRadiusMm: Math.abs(g.a) * entryRadius,
+      strength: g.strength * axial,
+      transmission: axial,
       tint: `${tintName(g.tint)} #${hex}`,
       tintRgb: g.tint,
     };
@@ -91,8 +128,9 @@ export function formatLensReport(r: LensReport, source: string, limit = 20): str
     );
   });
   if (r.ghosts.length > limit) lines.push(`  ... ${r.ghosts.length - limit} weaker (--all lists every one)`);
-  lines.push('', 'k: ghost centre over the light\'s image height (negative: across the centre); radius at the widest aperture;');
-  lines.push('strength: paraxial peak irradiance over the irradiance entering the lens.');
+  lines.push('', 'k: ghost centre over the light\'s image height (negative: across the centre); radius: of the rays that');
+  lines.push('get through the barrel and the stop, light on the axis, widest aperture; strength: paraxial peak irradiance over');
+  lines.push('the irradiance entering the lens, times the transmission of the path\'s other surfaces.');
   return lines.join('\n') + '\n';
 }
 
