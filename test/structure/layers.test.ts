@@ -20,6 +20,7 @@ const LAYER: Record<string, number> = {
   raster: 1,
   safety: 2,
   optics: 2,
+  plot: 2,
   shot: 3,
   occlusion: 3,
   elements: 3,

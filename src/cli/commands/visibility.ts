@@ -5,9 +5,9 @@ import path from 'node:path';
 import type { Command } from 'commander';
 import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadShot } from '../../io/load-shot.js';
-import { encodePng } from '../../io/png.js';
-import { FloatImage } from '../../raster/image.js';
-import { drawLine, drawPolyline, fill } from '../../raster/draw.js';
+import { chartBytes } from '../../io/svg-png.js';
+import { visibilitySvg } from '../../plot/visibility.js';
+import { framesToTimecode } from '../../timeline/timecode.js';
 import { lightVisibility, matteProvider } from '../../render/render-frame.js';
 import { shutterTimes } from '../../timeline/shutter.js';
 import { lightGain, lightState } from '../../render/frame-state.js';
@@ -20,14 +20,15 @@ export function registerVisibility(program: Command, { io }: CommandContext): vo
     .description('how much of each light its mattes let through, frame by frame (averaged over the shutter)')
     .argument('<shot>', 'shot file (YAML)')
     .option('--csv <file>', 'write frame,light,x,y,visibility,effective_intensity rows to a CSV file')
-    .option('--plot <file>', 'draw each light\'s visibility over the frame range to a PNG')
+    .option('--plot <file>', 'draw each light\'s visibility over the frame range: a chart as .svg or .png')
     .action((shotFile: string, opts: { csv?: string; plot?: string }) => {
-      if (opts.plot) requireExtension('--plot', opts.plot, ['.png']);
+      if (opts.plot) requireExtension('--plot', opts.plot, ['.svg', '.png']);
       const shot = loadShot(shotFile);
       for (const f of [opts.csv, opts.plot]) if (f) checkWritableFolder(path.dirname(path.resolve(f)));
       const mattes = matteProvider(shot);
       const rows: string[] = ['frame,light,x,y,visibility,effective_intensity'];
       const curves = shot.lights.map(() => [] as number[]);
+      const offFrame = shot.lights.map(() => [] as boolean[]);
       for (let f = shot.frame.first; f <= shot.frame.last; f++) {
         const times = shutterTimes(shot.shutter, f, shot.seed);
         shot.lights.forEach((light, li) => {
@@ -41,27 +42,21 @@ export function registerVisibility(program: Command, { io }: CommandContext): vo
           g /= times.length;
           const s = lightState(light, f);
           curves[li].push(v);
+          offFrame[li].push(s.xPx < 0 || s.yPx < 0 || s.xPx >= shot.frame.widthPx || s.yPx >= shot.frame.heightPx);
           rows.push(`${f},${light.name},${s.xPx.toFixed(2)},${s.yPx.toFixed(2)},${v.toFixed(4)},${(v * g).toPrecision(6)}`);
         });
       }
       if (opts.csv) writeOutputFile(path.resolve(opts.csv), Buffer.from(rows.join('\n') + '\n'));
       else io.stdout(rows.join('\n') + '\n');
       if (opts.plot) {
-        const W = 1200;
-        const H = 160 + 120 * shot.lights.length;
-        const img = new FloatImage(W, H);
-        fill(img, [0.03, 0.03, 0.035]);
-        const colours: [number, number, number][] = [[1, 0.55, 0.2], [0.3, 0.7, 1], [0.5, 1, 0.4], [1, 0.4, 0.8]];
-        const n = shot.frame.last - shot.frame.first;
-        const X = (k: number) => 60 + ((W - 100) * k) / Math.max(1, n);
-        curves.forEach((c, li) => {
-          const top = 40 + li * 120;
-          const Y = (v: number) => top + 100 * (1 - v);
-          drawLine(img, X(0), Y(0), X(n), Y(0), 1, [0.25, 0.25, 0.25]);
-          drawLine(img, X(0), Y(1), X(n), Y(1), 1, [0.25, 0.25, 0.25]);
-          drawPolyline(img, c.flatMap((v, k) => [X(k), Y(v)]), 2, colours[li % colours.length]);
+        const chart = visibilitySvg({
+          title: `Visibility of each light: ${path.basename(shotFile)}, frames ${shot.frame.first}-${shot.frame.last}`,
+          first: shot.frame.first,
+          last: shot.frame.last,
+          timecode: (n) => framesToTimecode(shot.frame.timecodeStartFrames + (n - shot.frame.first), shot.frame.rate, shot.frame.dropFrame),
+          curves: shot.lights.map((light, li) => ({ name: light.name, values: curves[li], offFrame: offFrame[li] })),
         });
-        writeOutputFile(path.resolve(opts.plot), encodePng(img, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }));
+        writeOutputFile(path.resolve(opts.plot), chartBytes(chart, opts.plot));
       }
     });
 }
