@@ -5,7 +5,7 @@
 
 import { scaleLinear } from 'd3-scale';
 import { line } from 'd3-shape';
-import { el, esc, PALETTE, svgDocument, text } from './svg.js';
+import { el, esc, frameTicks, PALETTE, svgDocument, text, yLabel, yTicks } from './svg.js';
 
 export interface VisibilityCurve {
   name: string;
@@ -55,35 +55,13 @@ export function visibilitySvg(c: VisibilityChart): string {
       parts.push(el('rect', { class: 'off-frame', 'data-light': cv.name, x: x0, y: M.top, width: Math.max(1, x1 - x0), height: H - M.top - M.bottom, fill: PALETTE[li % PALETTE.length], 'fill-opacity': 0.12 }));
     }
   });
-  // y grid and ticks
-  for (const v of [0, 0.25, 0.5, 0.75, 1]) {
-    parts.push(
-      el(
-        'g',
-        { class: 'tick y', 'data-value': v, transform: `translate(0,${y(v).toFixed(2)})` },
-        el('line', { x1: M.left, x2: W - M.right, y1: 0, y2: 0, stroke: v === 0 ? '#444444' : '#dddddd', 'stroke-width': 1 }),
-        text(M.left - 8, 4, v.toFixed(2), { 'text-anchor': 'end', fill: '#333333' }),
-      ),
-    );
-  }
+  parts.push(...yTicks(y, M.left, W - M.right, [0, 0.25, 0.5, 0.75, 1], (v) => v.toFixed(2)));
   // x ticks: whole frame numbers, with the timecode under each
-  const ticks = x.ticks(Math.min(12, c.last - c.first + 1)).filter((t) => Number.isInteger(t));
-  for (const t of ticks) {
-    parts.push(
-      el(
-        'g',
-        { class: 'tick x', 'data-value': t, transform: `translate(${x(t).toFixed(2)},0)` },
-        el('line', { x1: 0, x2: 0, y1: M.top, y2: H - M.bottom, stroke: '#eeeeee', 'stroke-width': 1 }),
-        el('line', { x1: 0, x2: 0, y1: H - M.bottom, y2: H - M.bottom + 5, stroke: '#444444', 'stroke-width': 1 }),
-        text(0, H - M.bottom + 20, String(t), { 'text-anchor': 'middle', fill: '#333333' }),
-        text(0, H - M.bottom + 36, c.timecode(t), { 'text-anchor': 'middle', fill: '#777777', 'font-size': 11 }),
-      ),
-    );
-  }
+  parts.push(...frameTicks(x, c.first, c.last, M.top, H - M.bottom, c.timecode));
   // axes' lines and labels
   parts.push(el('line', { x1: M.left, x2: M.left, y1: M.top, y2: H - M.bottom, stroke: '#444444', 'stroke-width': 1 }));
   parts.push(text((M.left + W - M.right) / 2, H - 22, 'frame (timecode below)', { 'text-anchor': 'middle', fill: '#222222' }));
-  parts.push(text(22, (M.top + H - M.bottom) / 2, 'visibility (share of the light not covered)', { 'text-anchor': 'middle', fill: '#222222', transform: `rotate(-90 22 ${(M.top + H - M.bottom) / 2})` }));
+  parts.push(yLabel(22, M.top, H - M.bottom, 'visibility (share of the light not covered)'));
   parts.push(text(M.left, 32, c.title, { 'font-size': 17, 'font-weight': 'bold', fill: '#111111' }));
   parts.push(text(M.left, 50, 'averaged over the open shutter; shaded: the light is outside the frame', { 'font-size': 12, fill: '#555555' }));
   // one line per light

@@ -39,6 +39,18 @@ export interface FlaggedSpan {
   worst: { x: number; y: number; width: number; height: number; areaFraction: number; frame: number };
 }
 
+/** One frame as the screening saw it, for charts: the frame's luminance and how hard it flashes. */
+export interface FlashTraceFrame {
+  frame: number;
+  /** mean and largest relative luminance (BT.709, clipped to 1) over the analysis cells */
+  meanLum: number;
+  peakLum: number;
+  /** per kind: flashes a second in the busiest cell over the trailing second, and the largest share
+   * of a 10-degree window whose cells flash too often */
+  general: { perSecond: number; area: number };
+  red: { perSecond: number; area: number };
+}
+
 export interface FlashReport {
   frames: number;
   firstFrame: number;
@@ -259,12 +271,19 @@ export class FlashAnalyser {
     }
     this.started = true;
     this.frameIndex++;
-    this.judge(frame, 'general', this.countGeneral);
-    this.judge(frame, 'red', this.countRed);
+    let sum = 0;
+    let peak = 0;
+    for (let c = 0; c < n; c++) {
+      sum += this.lum[c];
+      if (this.lum[c] > peak) peak = this.lum[c];
+    }
+    const general = this.judge(frame, 'general', this.countGeneral);
+    const red = this.judge(frame, 'red', this.countRed);
+    this.trace.push({ frame, meanLum: sum / n, peakLum: peak, general, red });
   }
 
   /** Slide the windows over the cells that flash too often; open, extend or close a span. */
-  private judge(frame: number, kind: FlashKind, counts: Uint16Array): void {
+  private judge(frame: number, kind: FlashKind, counts: Uint16Array): { perSecond: number; area: number } {
     const { cellsX, cellsY } = this;
     // summed-area table of flashing cells
     const sat = new Uint32Array((cellsX + 1) * (cellsY + 1));
@@ -312,7 +331,11 @@ export class FlashAnalyser {
       this.spans.push(span);
       delete this.open[kind];
     }
+    return { perSecond: maxCount / 2, area: best };
   }
+
+  /** every frame screened so far, in order (what `flashes --plot` draws) */
+  readonly trace: FlashTraceFrame[] = [];
 
   report(): FlashReport {
     const spans = [...this.spans, ...(Object.values(this.open) as FlaggedSpan[])].sort((a, b) => a.firstFrame - b.firstFrame || (a.kind < b.kind ? -1 : 1));

@@ -20,7 +20,7 @@ const LAYER: Record<string, number> = {
   raster: 1,
   safety: 2,
   optics: 2,
-  plot: 2,
+  plot: 3,
   shot: 3,
   occlusion: 3,
   elements: 3,
