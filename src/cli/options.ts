@@ -68,3 +68,15 @@ export function memorySize(name: string) {
     return b;
   };
 }
+
+/** A commander argument parser for --scale: a fraction of the frame's size, above 0 and at most 1. */
+export function fraction(name: string) {
+  return (v: string): number => {
+    const n = Number(v);
+    if (!/^\s*(0?\.\d+|1(\.0*)?|0)\s*$/.test(v) || !(n > 0 && n <= 1)) throw new UsageError(`${name}: expected a fraction of the frame's size above 0 and at most 1 (e.g. 0.5), found "${v}"`);
+    return n;
+  };
+}
+
+/** The look-dev overrides shared by still and render. */
+export const QUALITIES = ['draft', 'low', 'medium', 'high'] as const;

@@ -18,7 +18,9 @@ import { checkPlateTemplate, compositeTemplate, timecodeOf } from '../../review/
 import { writeComposites } from '../../review/composite.js';
 import type { CommandContext } from '../context.js';
 import { formatFlashReport } from '../flash-report.js';
-import { frameList, memorySize, parseFrameRange, parseShard, positiveInt } from '../options.js';
+import { fraction, frameList, memorySize, parseFrameRange, parseShard, positiveInt, QUALITIES } from '../options.js';
+import { scaleShot, withGhostQuality } from '../../render/overrides.js';
+import type { GhostQuality } from '../../optics/ghost-system.js';
 import { Progress, renderRate } from '../progress.js';
 import { screenSequences, writtenTemplate } from '../sequences.js';
 
@@ -38,15 +40,26 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
     .option('--fail-on-flash', 'exit 5 when flash screening flags the rendered frames')
     .addOption(new Option('--format <format>', "output format, instead of the shot's (an --out ending in .exr also picks exr)").choices(['png16', 'png8', 'exr']))
     .addOption(new Option('--alpha <mode>', "alpha, instead of the shot's: none (add), premultiplied, or emission (exr: over adds)").choices(['none', 'premultiplied', 'emission']))
+    .addOption(new Option('--quality <q>', "ghost quality, instead of the shot's, for a quick look (needs --out away from the shot's output)").choices([...QUALITIES]))
+    .addOption(new Option('--scale <s>', "render at this fraction of the frame size (e.g. 0.5), positions and sizes scaled (needs --out away from the shot's output)").argParser(fraction('--scale')))
     .option('--movie <file>', 'then encode a review movie with ffmpeg: .mov (ProRes 4444 with alpha) or .mp4 (H.264)')
     .option('--over <plate>', 'then write review frames of the pass added over this background plate sequence (linear light; NAME.over.####.png), and make any --movie from them')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; maxMemory?: number; failOnFlash?: boolean; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; maxMemory?: number; failOnFlash?: boolean; quality?: GhostQuality; scale?: number; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
       // review options are checked before any work, so an overnight render does not fail at the end
       if (opts.movie) movieKind(opts.movie);
       const ffmpeg = opts.movie ? findFfmpeg() : undefined;
       checkPlateTemplate(opts.over);
       if ((opts.movie || opts.over) && opts.shard) throw new UsageError(`${opts.movie ? '--movie' : '--over'} needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)`);
-      const shot = withOutputOptions(loadShot(shotFile), opts);
+      const loaded = withOutputOptions(loadShot(shotFile), opts);
+      // look-dev overrides never write into the full render's folder (nor touch its manifest)
+      const overridden = opts.quality !== undefined || opts.scale !== undefined;
+      if (overridden) {
+        const flags = [opts.quality !== undefined ? '--quality' : '', opts.scale !== undefined ? '--scale' : ''].filter(Boolean).join(' and ');
+        const verb = opts.quality !== undefined && opts.scale !== undefined ? 'make' : 'makes';
+        if (!opts.out) throw new UsageError(`${flags} ${verb} a quick look, not the shot's frames: give --out a template in another folder`);
+        if (path.dirname(path.resolve(opts.out)) === path.dirname(loaded.output.template)) throw new UsageError(`${flags}: --out is the shot's own output folder (${path.dirname(loaded.output.template)}); give a template in another folder so the full render's frames stay as they are`);
+      }
+      const shot = scaleShot(opts.quality ? withGhostQuality(loaded, opts.quality) : loaded, opts.scale ?? 1);
       const frames = opts.frames ? parseFrameRange(opts.frames, shot) : { first: shot.frame.first, last: shot.frame.last };
       let template: string | undefined;
       if (opts.out) {

@@ -7,7 +7,10 @@ import { loadShot } from '../../io/load-shot.js';
 import { encodeOutput } from '../../io/encode-frame.js';
 import { renderFrame } from '../../render/render-frame.js';
 import type { CommandContext } from '../context.js';
-import { integer, parseFrameRange, requireExtension } from '../options.js';
+import { Option } from 'commander';
+import { fraction, integer, parseFrameRange, QUALITIES, requireExtension } from '../options.js';
+import { scaleShot, withGhostQuality } from '../../render/overrides.js';
+import type { GhostQuality } from '../../optics/ghost-system.js';
 
 export function registerStill(program: Command, { io }: CommandContext): void {
   program
@@ -16,9 +19,12 @@ export function registerStill(program: Command, { io }: CommandContext): void {
     .argument('<shot>', 'shot file (YAML)')
     .requiredOption('--frame <n>', 'frame number', integer('--frame'))
     .requiredOption('--out <file>', 'output file: .png or .exr')
-    .action((shotFile: string, opts: { frame: number; out: string }) => {
+    .addOption(new Option('--quality <q>', "ghost quality, instead of the shot's (draft is the quickest look)").choices([...QUALITIES]))
+    .addOption(new Option('--scale <s>', 'render at this fraction of the frame size (e.g. 0.5), positions and sizes scaled with it').argParser(fraction('--scale')))
+    .action((shotFile: string, opts: { frame: number; out: string; quality?: GhostQuality; scale?: number }) => {
       requireExtension('--out', opts.out, ['.png', '.exr']);
-      const shot = loadShot(shotFile);
+      const full = loadShot(shotFile);
+      const shot = scaleShot(opts.quality ? withGhostQuality(full, opts.quality) : full, opts.scale ?? 1);
       parseFrameRange(String(opts.frame), shot, '--frame');
       const ext = path.extname(opts.out).toLowerCase();
       const out = path.resolve(opts.out);
