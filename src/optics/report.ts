@@ -8,6 +8,8 @@ import { ghostPath, vertexZ, type LensModel } from './lens.js';
 import { RayHit, planPath, tracePoints, traceRay } from './trace.js';
 
 export interface GhostRow {
+  /** the ghost's name in a shot's flare.ghosts.paths and solo: "first-second" */
+  name: string;
   /** 1-based surface numbers, front to back: reflected first at `first`, then at `second` */
   first: number;
   second: number;
@@ -87,6 +89,7 @@ export function lensReport(lens: LensModel, system: LensSystem = prepareLens(len
       hi = Math.max(hi, hit.x);
     }
     return {
+      name: `${g.i + 1}-${g.j + 1}`,
       first: g.i + 1,
       second: g.j + 1,
       k: g.k,
@@ -120,15 +123,15 @@ export function formatLensReport(r: LensReport, source: string, limit = 20): str
     `sensor    ${r.sensorWidthMm} mm wide${r.squeeze !== 1 ? `; anamorphic squeeze ${r.squeeze}x` : ''}`,
     `ghosts    ${r.ghostCount} two-reflection paths from ${r.glassSurfaces} reflecting surfaces; strongest first:`,
     '',
-    '  rank  reflects at  position k  radius mm  strength   tint',
+    '  rank  ghost  reflects at  position k  radius mm  strength   tint',
   ];
   r.ghosts.slice(0, limit).forEach((g, n) => {
     lines.push(
-      `  ${String(n + 1).padStart(4)}  ${`${g.first} then ${g.second}`.padEnd(11)}  ${g.k.toFixed(3).padStart(10)}  ${g.radiusMm.toFixed(2).padStart(9)}  ${g.strength.toExponential(1).padStart(8)}   ${g.tint}`,
+      `  ${String(n + 1).padStart(4)}  ${g.name.padEnd(5)}  ${`${g.first} then ${g.second}`.padEnd(11)}  ${g.k.toFixed(3).padStart(10)}  ${g.radiusMm.toFixed(2).padStart(9)}  ${g.strength.toExponential(1).padStart(8)}   ${g.tint}`,
     );
   });
   if (r.ghosts.length > limit) lines.push(`  ... ${r.ghosts.length - limit} weaker (--all lists every one)`);
-  lines.push('', 'k: ghost centre over the light\'s image height (negative: across the centre); radius: of the rays that');
+  lines.push('', 'ghost: its name in a shot (flare.ghosts.paths, solo); k: ghost centre over the light\'s image height (negative: across the centre); radius: of the rays that');
   lines.push('get through the barrel and the stop, light on the axis, widest aperture; strength: paraxial peak irradiance over');
   lines.push('the irradiance entering the lens, times the transmission of the path\'s other surfaces.');
   return lines.join('\n') + '\n';

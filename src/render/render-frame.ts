@@ -88,6 +88,28 @@ export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number,
   return out;
 }
 
+/**
+ * The shot's per-ghost switches, gains and tints at time t, as addGhosts takes them (nothing when
+ * the shot names no ghost): disabled ghosts get 0; with `solo`, only the listed ghosts are drawn.
+ */
+export function ghostPathMultipliers(shot: ResolvedShot, t: number): { paths?: Map<string, [number, number, number]>; only?: boolean } {
+  const { paths, solo } = shot.ghosts;
+  const names = Object.keys(paths);
+  if (names.length === 0 && solo.length === 0) return {};
+  const out = new Map<string, [number, number, number]>();
+  for (const name of new Set([...names, ...solo])) {
+    const p = paths[name];
+    if (!p) {
+      out.set(name, [1, 1, 1]);
+      continue;
+    }
+    const g = p.enabled ? evalScalar(p.gain, t) : 0;
+    out.set(name, [p.tint[0] * g, p.tint[1] * g, p.tint[2] * g]);
+  }
+  if (solo.length > 0) for (const name of names) if (!solo.includes(name)) out.delete(name);
+  return { paths: out, only: solo.length > 0 };
+}
+
 /** Visibility of a light at time t (1 without mattes). */
 export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider = matteProvider(shot)): number {
   const s = lightState(light, t);
@@ -133,6 +155,7 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
     const gStreak = gain('streak');
     const gDust = gain('dust');
     const gVeil = gain('veil');
+    const ghostPaths = ghostPathMultipliers(shot, t);
     for (const light of shot.lights) {
       const s = lightState(light, t);
       if (s.gain <= 0) continue;
@@ -158,7 +181,7 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (gCore > 0) addDisk(img, { ...disk, radiance: [radiance[0] * gCore, radiance[1] * gCore, radiance[2] * gCore] }, pixelAspect, clearAt);
       if (visibility <= 0) continue;
       if (assets.lens && gGhosts > 0) {
-        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain * gGhosts, quality: shot.ghosts.quality }, stats);
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
       }
       if (assets.starburst && gStar > 0) {
         const k = shot.starburst.fraction * gStar;

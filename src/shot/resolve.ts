@@ -58,7 +58,7 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
   const shutter = shutterField ? resolveShutter(ctx, shutterField) : { angleDeg: 0, samples: 1, phaseDeg: 0 };
   const flareField = m.get('flare');
   const allOn = () => Object.fromEntries((['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'] as ElementName[]).map((n) => [n, elementControl(ctx, undefined)!])) as Record<ElementName, ElementControl>;
-  const flare = flareField ? resolveFlare(ctx, flareField) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS, starburst: DEFAULT_STARBURST, veil: { fraction: 0 }, streak: DEFAULT_STREAK, streakGiven: false, dust: DEFAULT_DUST, dustSeedGiven: false, elements: allOn() };
+  const flare = flareField ? resolveFlare(ctx, flareField, lens) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS, starburst: DEFAULT_STARBURST, veil: { fraction: 0 }, streak: DEFAULT_STREAK, streakGiven: false, dust: DEFAULT_DUST, dustSeedGiven: false, elements: allOn() };
   const outField = m.require('output', 'where and how frames are written');
   const output = outField ? resolveOutput(ctx, outField) : undefined;
   m.finish();

@@ -326,6 +326,12 @@ export class MapField {
     return [...this.entries.keys()];
   }
 
+  /** The key itself as a field (for problems with the key's own text, such as a ghost's name). */
+  keyField(key: string): Field | undefined {
+    const e = this.entries.get(key);
+    return e ? new Field(this.field.ctx, e.key, this.childPath(key)) : undefined;
+  }
+
   has(key: string): boolean {
     this.declared.add(key);
     return this.entries.has(key);

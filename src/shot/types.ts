@@ -128,6 +128,18 @@ export interface GhostSettings {
   quality: GhostQuality;
   /** ghosts whose paraxial peak estimate is below this fraction of the entering irradiance are skipped */
   threshold: number;
+  /** per ghost, by its name in `straylight lens` ("11-5": reflects at surface 11, then 5) */
+  paths: Record<string, GhostPathControl>;
+  /** when not empty, only these ghosts are drawn */
+  solo: string[];
+}
+
+export interface GhostPathControl {
+  enabled: boolean;
+  /** keyframable gain on top of the ghosts' gain */
+  gain: Key<number>[];
+  /** linear RGB multiplier at unit luminance (white: no change) */
+  tint: [number, number, number];
 }
 
 export interface ResolvedLens {

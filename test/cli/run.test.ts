@@ -162,7 +162,7 @@ describe('straylight lens', () => {
     expect(r.stderr).toBe('');
     expect(r.stdout).toContain('focal     50.00 mm (computed from the prescription at the d line)');
     expect(r.stdout).toContain('ghosts    45 two-reflection paths from 10 reflecting surfaces; strongest first:');
-    const strengths = [...r.stdout.matchAll(/^\s+\d+\s+\d+ then \d+\s+\S+\s+\S+\s+(\S+)/gm)].map((m) => Number(m[1]));
+    const strengths = [...r.stdout.matchAll(/^\s+\d+\s+\d+-\d+\s+\d+ then \d+\s+\S+\s+\S+\s+(\S+)/gm)].map((m) => Number(m[1]));
     expect(strengths.length).toBe(20);
     for (let k = 1; k < strengths.length; k++) expect(strengths[k]).toBeLessThanOrEqual(strengths[k - 1]);
   });

@@ -53,8 +53,15 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   const fitNm = system.samples[centre].nm;
   for (let g = 0; g < system.kept; g++) {
     const ghost = system.ranked[g];
+    // per-ghost switches, gains and tints from the shot
+    let own: readonly [number, number, number] = ONE;
+    if (settings.paths) {
+      const p = settings.paths.get(`${ghost.i + 1}-${ghost.j + 1}`);
+      if (p === undefined ? settings.only : p[0] <= 0 && p[1] <= 0 && p[2] <= 0) continue;
+      if (p) own = p;
+    }
     // paraxial peak estimate: skip what cannot reach a visible value
-    const peak = (lum / epArea) * ghost.strength * mm2PerPx * settings.gain;
+    const peak = (lum / epArea) * ghost.strength * mm2PerPx * settings.gain * (own === ONE ? 1 : Math.max(own[0], own[1], own[2]));
     if (peak < INVISIBLE) {
       if (stats) stats.skipped++;
       continue;
@@ -70,7 +77,8 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
     const samples = faint ? system.faintSamples : system.samples;
     const plans = faint ? ghost.faintPlans : ghost.plans;
     const fine = faint ? faintGrid : grid;
-    const tone = faint ? fine.colourMatch(ghost, box, system) : ONE;
+    const matched = faint ? fine.colourMatch(ghost, box, system) : ONE;
+    const tone = own === ONE ? matched : ([matched[0] * own[0], matched[1] * own[1], matched[2] * own[2]] as const);
     // drawn with the fitting grid, the fitting wavelength goes first, straight from the fit's trace
     const reuse = fine === coarse && coarse.lastTraced === box ? samples.findIndex((q) => q.nm === fitNm) : -1;
     for (let step = 0; step < samples.length; step++) {

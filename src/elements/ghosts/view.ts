@@ -23,6 +23,12 @@ export interface GhostFrameSettings {
   quality: GhostQuality;
   /** the faint-ghost threshold (default FAINT_PEAK; 0 draws every ghost in full) */
   faintPeak?: number;
+  /**
+   * per-ghost RGB multipliers by name ("11-5", as `straylight lens` lists them); a ghost whose
+   * multiplier is 0 in every channel is not drawn. With `only`, ghosts not listed are not drawn.
+   */
+  paths?: ReadonlyMap<string, readonly [number, number, number]>;
+  only?: boolean;
 }
 
 export interface GhostStats {

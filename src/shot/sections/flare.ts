@@ -3,12 +3,12 @@
 
 import { LINEAR } from '../../timeline/easing.js';
 import type { Field, MapField } from '../source.js';
-import type { DustSettings, ElementControl, ElementName, GhostSettings, GlowSettings, StarburstSettings, StreakSettings } from '../types.js';
+import type { DustSettings, ElementControl, ElementName, GhostSettings, GlowSettings, ResolvedLens, StarburstSettings, StreakSettings } from '../types.js';
 import type { ResolveContext } from './context.js';
 import { resolveColour, scalarKeys } from './keys.js';
 
 export const DEFAULT_GLOW: GlowSettings = { fraction: 0.04, sizePx: 6, falloff: 3 };
-export const DEFAULT_GHOSTS: GhostSettings = { enabled: true, gain: 1, quality: 'medium', threshold: 1e-6 };
+export const DEFAULT_GHOSTS: GhostSettings = { enabled: true, gain: 1, quality: 'medium', threshold: 1e-6, paths: {}, solo: [] };
 export const DEFAULT_STARBURST: StarburstSettings = { fraction: 0.05, size: 1 };
 export const DEFAULT_STREAK: StreakSettings = { fraction: 0, lengthPx: 200, thicknessPx: 1 };
 export const DEFAULT_DUST: DustSettings = { fraction: 0, density: 1, reachPx: 300, seed: 0 };
@@ -39,7 +39,57 @@ export function elementSection<T>(ctx: ResolveContext, f: Field | undefined, wha
   return settings !== undefined && control ? { settings, control } : undefined;
 }
 
-export function resolveFlare(ctx: ResolveContext, f: Field) {
+/** A ghost's name as `straylight lens` lists it: "i-j", reflecting at surface i, then j (1-based). */
+function ghostName(f: Field, lens: ResolvedLens | undefined): string | undefined {
+  const s = f.isNumber() ? undefined : f.string('a ghost named by its surfaces, such as 11-5');
+  if (s === undefined) return undefined;
+  if (!lens) return f.error('ghosts are named by the surfaces of a lens: give the shot a lens');
+  const m = /^(\d+)-(\d+)$/.exec(s);
+  const surfaces = lens.model.surfaces;
+  const ok = (k: number) => k >= 1 && k <= surfaces.length && !surfaces[k - 1].stop;
+  if (!m || Number(m[1]) <= Number(m[2]) || !ok(Number(m[1])) || !ok(Number(m[2]))) {
+    return f.error(`expected a ghost of this lens named as in \`straylight lens\` (I-J: reflects at surface I, then at an earlier surface J; surfaces 1-${surfaces.length}, the stop excluded), found ${f.describe()}`);
+  }
+  return s;
+}
+
+/** flare.ghosts.paths and .solo: per-ghost switches, gains and tints. */
+function ghostPaths(ctx: ResolveContext, gm: MapField, lens: ResolvedLens | undefined): { paths: GhostSettings['paths']; solo: string[] } | undefined {
+  const paths: GhostSettings['paths'] = {};
+  let ok = true;
+  const pf = gm.get('paths');
+  const pm = pf?.map('a mapping of ghost names (as `straylight lens` lists them, e.g. 11-5) to {enabled, gain, tint}');
+  if (pf && !pm) ok = false;
+  if (pm) {
+    for (const key of pm.keys()) {
+      const name = ghostName(pm.keyField(key)!, lens);
+      const entry = pm.get(key)!;
+      const em = entry.map('{enabled, gain, tint}');
+      if (!em) {
+        ok = false;
+        continue;
+      }
+      const control = elementControl(ctx, em);
+      const tf = em.get('tint');
+      const tint = tf ? resolveColour(ctx, tf) : { rgb: [1, 1, 1] as [number, number, number] };
+      em.finish();
+      if (!name || !control || !tint) ok = false;
+      else paths[name] = { enabled: control.enabled, gain: control.gain, tint: tint.rgb };
+    }
+    pm.finish();
+  }
+  const sf = gm.get('solo');
+  let solo: string[] = [];
+  if (sf) {
+    const items = sf.isSeq() ? sf.list()! : [sf];
+    const names = items.map((x) => ghostName(x, lens));
+    if (names.some((n) => n === undefined)) ok = false;
+    else solo = names as string[];
+  }
+  return ok ? { paths, solo } : undefined;
+}
+
+export function resolveFlare(ctx: ResolveContext, f: Field, lens?: ResolvedLens) {
   const m = f.map();
   if (!m) return undefined;
   const num = (mf: MapField, key: string, rule: Parameters<Field['number']>[0], dflt: number) => {
@@ -53,11 +103,12 @@ export function resolveFlare(ctx: ResolveContext, f: Field) {
     const falloff = num(gm, 'falloff', { min: 2, minExclusive: true, max: 8 }, DEFAULT_GLOW.falloff);
     return fraction === undefined || sizePx === undefined || falloff === undefined ? undefined : { fraction, sizePx, falloff };
   });
-  const ghosts = elementSection(ctx, m.get('ghosts'), '{quality, threshold, enabled, gain}', DEFAULT_GHOSTS, (gm) => {
+  const ghosts = elementSection(ctx, m.get('ghosts'), '{quality, threshold, enabled, gain, paths, solo}', DEFAULT_GHOSTS, (gm) => {
     const qf = gm.get('quality');
     const quality = qf ? qf.oneOf(['draft', 'low', 'medium', 'high'] as const) : DEFAULT_GHOSTS.quality;
     const threshold = num(gm, 'threshold', { min: 0, max: 1 }, DEFAULT_GHOSTS.threshold);
-    return !quality || threshold === undefined ? undefined : { enabled: true, gain: 1, quality, threshold };
+    const per = ghostPaths(ctx, gm, lens);
+    return !quality || threshold === undefined || !per ? undefined : { enabled: true, gain: 1, quality, threshold, ...per };
   });
   const starburst = elementSection(ctx, m.get('starburst'), '{fraction, size, enabled, gain}', DEFAULT_STARBURST, (sm) => {
     const fraction = num(sm, 'fraction', { min: 0, max: 1 }, DEFAULT_STARBURST.fraction);
