@@ -4,31 +4,34 @@
 
 import { parseFrameTemplate } from '../format/frame-path.js';
 import { adoptShotAssets, shotAssets } from './render-frame.js';
-import type { ElementName, ResolvedShot } from '../shot/types.js';
+import type { ElementName, LightFlare, ResolvedShot } from '../shot/types.js';
 
 export const ELEMENTS: ElementName[] = ['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'];
 
-/** The elements that add anything to this shot's frames. */
+/** Whether an element adds anything with these flare settings. */
+function adds(f: LightFlare, e: ElementName, hasLens: boolean): boolean {
+  if (!f.elements[e].enabled) return false;
+  switch (e) {
+    case 'glow':
+      return f.glow.fraction > 0;
+    case 'ghosts':
+      return hasLens && f.ghosts.enabled;
+    case 'starburst':
+      return f.starburst.fraction > 0;
+    case 'veil':
+      return f.veil.fraction > 0;
+    case 'streak':
+      return f.streak.fraction > 0;
+    case 'dust':
+      return f.dust.fraction > 0;
+    default:
+      return true;
+  }
+}
+
+/** The elements that add anything to this shot's frames (the shot's settings or any light's own). */
 export function activeElements(shot: ResolvedShot): ElementName[] {
-  return ELEMENTS.filter((e) => {
-    if (!shot.elements[e].enabled) return false;
-    switch (e) {
-      case 'glow':
-        return shot.glow.fraction > 0;
-      case 'ghosts':
-        return Boolean(shot.lens) && shot.ghosts.enabled;
-      case 'starburst':
-        return shot.starburst.fraction > 0;
-      case 'veil':
-        return shot.veil.fraction > 0;
-      case 'streak':
-        return shot.streak.fraction > 0;
-      case 'dust':
-        return shot.dust.fraction > 0;
-      default:
-        return true;
-    }
-  });
+  return ELEMENTS.filter((e) => adds(shot, e, Boolean(shot.lens)) || shot.lights.some((l) => l.flare && adds(l.flare, e, Boolean(shot.lens))));
 }
 
 /** The pass's file template: the element's name before the frame number. */
@@ -41,8 +44,10 @@ export function passTemplate(template: string, element: ElementName): string {
 
 /** The shot with only one element on, writing to that element's sequence. */
 export function passShot(shot: ResolvedShot, element: ElementName): ResolvedShot {
-  const elements = Object.fromEntries(ELEMENTS.map((e) => [e, { ...shot.elements[e], enabled: e === element && shot.elements[e].enabled }])) as ResolvedShot['elements'];
-  const pass: ResolvedShot = { ...shot, elements, output: { ...shot.output, template: passTemplate(shot.output.template, element), passes: 'combined' } };
+  const only = (els: ResolvedShot['elements']) => Object.fromEntries(ELEMENTS.map((e) => [e, { ...els[e], enabled: e === element && els[e].enabled }])) as ResolvedShot['elements'];
+  const elements = only(shot.elements);
+  const lights = shot.lights.map((l) => (l.flare ? { ...l, flare: { ...l.flare, elements: only(l.flare.elements) } } : l));
+  const pass: ResolvedShot = { ...shot, lights, elements, output: { ...shot.output, template: passTemplate(shot.output.template, element), passes: 'combined' } };
   adoptShotAssets(pass, shotAssets(shot)); // the lens and kernels are the shot's; build them once
   return pass;
 }

@@ -13,7 +13,7 @@ import { MatteProvider } from '../io/matte-provider.js';
 import { prepareLens, type LensSystem } from '../optics/ghost-system.js';
 import { alphaCoverage, depthCoverage, diskVisibility, type CoverageLookup } from '../occlusion/visibility.js';
 import { FloatImage } from '../raster/image.js';
-import type { ResolvedLight, ResolvedShot } from '../shot/types.js';
+import type { LightFlare, ResolvedLight, ResolvedShot } from '../shot/types.js';
 import { evalScalar } from '../timeline/track.js';
 import { lightState } from './frame-state.js';
 import { shutterTimes } from '../timeline/shutter.js';
@@ -42,8 +42,10 @@ export function shotAssets(shot: ResolvedShot): ShotAssets {
   let a = cache.get(shot);
   if (!a) {
     a = shot.lens && shot.ghosts.enabled ? { lens: prepareLens(shot.lens.model, shot.ghosts.quality, shot.ghosts.threshold) } : {};
-    if (shot.starburst.fraction > 0) a.starburst = starburstKernel(shot.lens?.model.iris ?? DEFAULT_IRIS);
-    if (shot.dust.fraction > 0) a.dust = dustTexture(shot.frame.widthPx, shot.frame.heightPx, shot.dust.seed, shot.dust.density);
+    // built when the shot or any light with flare settings of its own draws them
+    const uses = (on: (f: LightFlare) => boolean) => on(shot) || shot.lights.some((l) => l.flare && on(l.flare));
+    if (uses((f) => f.starburst.fraction > 0)) a.starburst = starburstKernel(shot.lens?.model.iris ?? DEFAULT_IRIS);
+    if (uses((f) => f.dust.fraction > 0)) a.dust = dustTexture(shot.frame.widthPx, shot.frame.heightPx, shot.dust.seed, shot.dust.density);
     cache.set(shot, a);
   }
   return a;
@@ -88,12 +90,28 @@ export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number,
   return out;
 }
 
+/** Each element's gain at time t (0 when switched off), and the per-ghost multipliers. */
+function elementGains(f: LightFlare, t: number) {
+  const el = f.elements;
+  const gain = (n: keyof typeof el) => (el[n].enabled ? evalScalar(el[n].gain, t) : 0);
+  return {
+    gCore: gain('core'),
+    gGlow: gain('glow'),
+    gGhosts: gain('ghosts'),
+    gStar: gain('starburst'),
+    gStreak: gain('streak'),
+    gDust: gain('dust'),
+    gVeil: gain('veil'),
+    ghostPaths: ghostPathMultipliers(f, t),
+  };
+}
+
 /**
  * The shot's per-ghost switches, gains and tints at time t, as addGhosts takes them (nothing when
  * the shot names no ghost): disabled ghosts get 0; with `solo`, only the listed ghosts are drawn.
  */
-export function ghostPathMultipliers(shot: ResolvedShot, t: number): { paths?: Map<string, [number, number, number]>; only?: boolean } {
-  const { paths, solo } = shot.ghosts;
+export function ghostPathMultipliers(settings: Pick<LightFlare, 'ghosts'>, t: number): { paths?: Map<string, [number, number, number]>; only?: boolean } {
+  const { paths, solo } = settings.ghosts;
   const names = Object.keys(paths);
   if (names.length === 0 && solo.length === 0) return {};
   const out = new Map<string, [number, number, number]>();
@@ -145,18 +163,12 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
   for (const t of times) {
     const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, t) : 8;
     const veil = [0, 0, 0];
-    // each element's gain at this instant (0 when switched off)
-    const el = shot.elements;
-    const gain = (n: keyof typeof el) => (el[n].enabled ? evalScalar(el[n].gain, t) : 0);
-    const gCore = gain('core');
-    const gGlow = gain('glow');
-    const gGhosts = gain('ghosts');
-    const gStar = gain('starburst');
-    const gStreak = gain('streak');
-    const gDust = gain('dust');
-    const gVeil = gain('veil');
-    const ghostPaths = ghostPathMultipliers(shot, t);
+    // each element's gain at this instant (0 when switched off), the shot's and each light's own
+    const shotGains = elementGains(shot, t);
     for (const light of shot.lights) {
+      // a light with a flare block of its own is drawn with those settings (the shot's, its keys on top)
+      const ls: LightFlare = light.flare ?? shot;
+      const { gCore, gGlow, gGhosts, gStar, gStreak, gDust, gVeil, ghostPaths } = light.flare ? elementGains(light.flare, t) : shotGains;
       const s = lightState(light, t);
       if (s.gain <= 0) continue;
       const lookups = coverageFor(shot, light, t, mattes);
@@ -167,11 +179,11 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       const clearAt = lookups.length ? (x: number, y: number) => lookups.reduce((c, f) => c * (1 - f(x, y)), 1) : undefined;
       // the glow first (it may clear the frame as it goes), then the disk over it
       const flux = diskFlux(disk).map((c) => c * visibility) as [number, number, number];
-      const f = shot.glow.fraction * gGlow;
+      const f = ls.glow.fraction * gGlow;
       if (visibility > 0 && f > 0) {
         addGlow(
           img,
-          { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: shot.glow.sizePx, falloff: shot.glow.falloff },
+          { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * f, flux[1] * f, flux[2] * f], sizePx: ls.glow.sizePx, falloff: ls.glow.falloff },
           pixelAspect,
           !clear,
         );
@@ -181,20 +193,20 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (gCore > 0) addDisk(img, { ...disk, radiance: [radiance[0] * gCore, radiance[1] * gCore, radiance[2] * gCore] }, pixelAspect, clearAt);
       if (visibility <= 0) continue;
       if (assets.lens && gGhosts > 0) {
-        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: shot.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
       }
       if (assets.starburst && gStar > 0) {
-        const k = shot.starburst.fraction * gStar;
-        const binPx = (binSizeMm(assets.starburst, fNumber) / (sensorMm / widthPx)) * shot.starburst.size;
+        const k = ls.starburst.fraction * gStar;
+        const binPx = (binSizeMm(assets.starburst, fNumber) / (sensorMm / widthPx)) * ls.starburst.size;
         addStarburst(img, assets.starburst, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k, flux[1] * k, flux[2] * k], binPx }, pixelAspect);
       }
-      if (shot.streak.fraction * gStreak > 0) {
-        const k = shot.streak.fraction * gStreak;
-        const tint = shot.streak.tint ?? coatingTint(assets);
-        addStreak(img, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k * tint[0], flux[1] * k * tint[1], flux[2] * k * tint[2]], lengthPx: shot.streak.lengthPx, thicknessPx: shot.streak.thicknessPx }, pixelAspect);
+      if (ls.streak.fraction * gStreak > 0) {
+        const k = ls.streak.fraction * gStreak;
+        const tint = ls.streak.tint ?? coatingTint(assets);
+        addStreak(img, { xPx: s.xPx, yPx: s.yPx, energy: [flux[0] * k * tint[0], flux[1] * k * tint[1], flux[2] * k * tint[2]], lengthPx: ls.streak.lengthPx, thicknessPx: ls.streak.thicknessPx }, pixelAspect);
       }
-      if (assets.dust && gDust > 0) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, shot.dust.fraction * gDust, shot.dust.reachPx);
-      for (let c = 0; c < 3; c++) veil[c] += flux[c] * shot.veil.fraction * gVeil;
+      if (assets.dust && gDust > 0) addDust(img, assets.dust, { xPx: s.xPx, yPx: s.yPx, flux }, ls.dust.fraction * gDust, ls.dust.reachPx);
+      for (let c = 0; c < 3; c++) veil[c] += flux[c] * ls.veil.fraction * gVeil;
     }
     ensureClear();
     if (veil[0] > 0 || veil[1] > 0 || veil[2] > 0) addVeil(img, veil as [number, number, number], pixelAspect);

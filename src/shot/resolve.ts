@@ -83,9 +83,22 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
       lf.error(`missing key "depth" (the light's distance, in the depth matte's units, for the depth matte${mattes.filter((x) => x.kind === 'depth').length > 1 ? 's' : ''})`);
     }
   });
-  if (!ok) return undefined;
   // an anamorphic lens streaks unless the shot says otherwise
   const streak = flare.streakGiven || !lens || lens.model.squeeze === 1 ? flare.streak : { ...flare.streak, fraction: 0.02 };
+  const dust = { ...flare.dust, seed: flare.dustSeedGiven ? flare.dust.seed : seed };
+  // a light's own flare block: the shot's settings with the light's keys on top
+  const base = { ...flare, streak, dust, streakGiven: true, dustSeedGiven: true };
+  lights.forEach((l, i) => {
+    const ff = new MapField(lightFields[i]).get('flare');
+    if (!ff) return;
+    const own = resolveFlare(ctx, ff, lens, base);
+    if (!own) {
+      ok = false;
+      return;
+    }
+    l.flare = { glow: own.glow, ghosts: own.ghosts, starburst: own.starburst, veil: own.veil, streak: own.streak, dust: own.dust, elements: own.elements };
+  });
+  if (!ok) return undefined;
   return {
     version: 1,
     file: absFile,
@@ -98,7 +111,7 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
     starburst: flare.starburst,
     veil: flare.veil,
     streak,
-    dust: { ...flare.dust, seed: flare.dustSeedGiven ? flare.dust.seed : seed },
+    dust,
     elements: flare.elements,
     mattes,
     shutter,

@@ -80,6 +80,19 @@ export interface ResolvedLight {
   depth?: Key<number>[];
   offFrame: 'clear' | 'hold' | 'hidden';
   limbDarkening: number;
+  /** the light's own flare settings (the shot's with the light's `flare` keys on top); absent: the shot's */
+  flare?: LightFlare;
+}
+
+/** The flare settings one light is drawn with. */
+export interface LightFlare {
+  glow: GlowSettings;
+  ghosts: GhostSettings;
+  starburst: StarburstSettings;
+  veil: { fraction: number };
+  streak: StreakSettings;
+  dust: DustSettings;
+  elements: Record<ElementName, ElementControl>;
 }
 
 export interface GlowSettings {

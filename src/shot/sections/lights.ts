@@ -80,6 +80,8 @@ export function resolveLight(ctx: ResolveContext, f: Field): ResolvedLight | und
   const depth = depthField ? scalarKeys(ctx, depthField, 'value', { min: 0, max: 1e12 }) : undefined;
   const offField = m.get('off_frame');
   const offFrame = offField ? offField.oneOf(['clear', 'hold', 'hidden'] as const) : 'clear';
+  // a light's own flare block is read once the shot's flare is known (resolve.ts)
+  m.get('flare');
   const limbField = m.get('limb_darkening');
   const limbDarkening = limbField ? limbField.number({ min: 0, max: 1 }) : 0;
   m.finish();
