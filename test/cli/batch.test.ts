@@ -51,10 +51,30 @@ describe('straylight batch', () => {
       // thumbnails decode in the browser
       const loaded = await page.locator('section.shot img').evaluateAll((imgs) => imgs.map((i) => (i as HTMLImageElement).naturalWidth));
       expect(loaded).toEqual([96, 96]);
+      // the summary table says what the JSON says
+      const cell = (k: string) => page.locator(`table.summary td[data-key="${k}"]`).textContent();
+      const done = json.shots.reduce((n: number, s: { written: number; skipped: number }) => n + s.written + s.skipped, 0);
+      const total = json.shots.reduce((n: number, s: { frames: number }) => n + s.frames, 0);
+      expect(await cell('shots')).toBe(`2 of 3`);
+      expect(await cell('frames')).toBe(`${done} of ${total}`);
+      expect(await cell('failures')).toBe('1');
+      // each rendered shot: its range with timecodes, a thumbnail named by its frame, a visibility chart
+      expect(await page.locator('section.shot figcaption').allTextContents()).toEqual(['frame 4', 'frame 4']);
+      expect(await page.locator('section.shot .chart svg').count()).toBe(2);
+      expect(await page.locator('section.shot').first().textContent()).toContain('frames 1-6 (00:00:00:01 - 00:00:00:06); lens none');
       await page.screenshot({ path: path.join(dir, 'report.png'), fullPage: true });
       expect(problems).toEqual([]);
     } finally {
       await browser.close();
     }
   }, 60_000);
+
+  it('--report FOLDER writes report.json and index.html in it', async () => {
+    const dir = tempDir();
+    writeFileSync(path.join(dir, 'one.yaml'), good('one'));
+    const r = await cli(['batch', path.join(dir, 'one.yaml'), '--report', `${path.join(dir, 'morning')}/`, '--quiet', '--jobs', '1']);
+    expect(r.code).toBe(0);
+    expect(JSON.parse(readFileSync(path.join(dir, 'morning', 'report.json'), 'utf8')).shots).toHaveLength(1);
+    expect(readFileSync(path.join(dir, 'morning', 'index.html'), 'utf8')).toContain('<table class="summary">');
+  });
 });

@@ -3,7 +3,11 @@
 
 import path from 'node:path';
 import { availableParallelism } from 'node:os';
-import { existsSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
+import { pathToFileURL } from 'node:url';
+import { visibilitySvg } from '../../plot/visibility.js';
+import { visibilityChart, visibilityRows } from '../../render/visibility-curves.js';
+import { framesToTimecode } from '../../timeline/timecode.js';
 import { Option, type Command } from 'commander';
 import { ExitCode, StraylightError, UsageError } from '../../errors.js';
 import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
@@ -26,15 +30,18 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
     .command('batch')
     .description('render many shots, going on past failures, and write a report (JSON and an HTML page)')
     .argument('<shots...>', 'shot files')
-    .option('--report <file.json>', 'where to write the report; the HTML page goes beside it', 'straylight-report.json')
+    .option('--report <file.json|folder>', 'where to write the report: a .json file (the HTML page goes beside it), or a folder (report.json and index.html in it)', 'straylight-report.json')
     .addOption(new Option('--jobs <n>', 'worker threads per shot (default: the available parallelism)').argParser(positiveInt('--jobs')))
     .option('--force', 'render every frame, even those already there')
     .option('--quiet', 'print nothing but errors and safety warnings')
     .addOption(new Option('--max-memory <size>', 'memory each shot\'s render may use, e.g. 8G (default: 80% of what is free)').argParser(memorySize('--max-memory')))
     .action(async (shots: string[], opts: { report: string; jobs?: number; force?: boolean; quiet?: boolean; maxMemory?: number }) => {
-      if (!opts.report.endsWith('.json')) throw new UsageError(`--report: the file must end in .json, found "${opts.report}"`);
+      const asFolder = opts.report.endsWith('/') || (existsSync(opts.report) && statSync(opts.report).isDirectory());
+      if (!asFolder && !opts.report.endsWith('.json')) throw new UsageError(`--report: give a .json file or a folder, found "${opts.report}"`);
+      const json = asFolder ? path.resolve(opts.report, 'report.json') : path.resolve(opts.report);
+      const html = asFolder ? path.resolve(opts.report, 'index.html') : json.replace(/\.json$/, '.html');
       // the report is the morning's answer: its folder must take it before any shot renders
-      checkWritableFolder(path.dirname(path.resolve(opts.report)), "the report's folder");
+      checkWritableFolder(path.dirname(json), "the report's folder");
       const report: BatchReport = { tool: `straylight ${VERSION}`, started: new Date().toISOString(), finished: '', shots: [] };
       for (const file of shots) {
         if (io.signal?.aborted) break;
@@ -45,6 +52,10 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
           const shot = loadShot(file);
           entry.output = shot.output.template;
           entry.frames = shot.frame.last - shot.frame.first + 1;
+          const tc = (n: number) => framesToTimecode(shot.frame.timecodeStartFrames + n - shot.frame.first, shot.frame.rate, shot.frame.dropFrame);
+          entry.range = { first: shot.frame.first, last: shot.frame.last, timecode: `${tc(shot.frame.first)} - ${tc(shot.frame.last)}` };
+          const fn = shot.lens?.fNumber.map((k) => k.value) ?? [];
+          entry.lens = shot.lens ? `${shot.lens.source}, f/${Math.min(...fn)}${fn.length > 1 ? `..f/${Math.max(...fn)}` : ''}` : 'none';
           const sequences = outputSequences(shot);
           entry.frames *= sequences.length;
           let interrupted = false;
@@ -64,7 +75,12 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
           }
           const mid = Math.round((shot.frame.first + shot.frame.last) / 2);
           const thumbFile = expandFramePath(shot.output.template, mid);
-          if (existsSync(thumbFile)) entry.thumbnail = thumbnail(thumbFile);
+          if (existsSync(thumbFile)) {
+            entry.thumbnail = thumbnail(thumbFile);
+            entry.thumbnailFrame = mid;
+          }
+          entry.frameUrl = pathToFileURL(shot.output.template).href;
+          entry.visibility = visibilitySvg(visibilityChart(shot, visibilityRows(shot), `Visibility: ${path.basename(file)}`));
           if (!opts.quiet) io.stderr(`${file}: ${entry.status}, ${entry.written} rendered, ${entry.skipped} kept, ${entry.failed.length} failed\n`);
           if (entry.flashes.length) io.stderr(`WARNING: ${file} may flash dangerously for viewers with photosensitive epilepsy (frames ${entry.flashes.map((s) => `${s.firstFrame}-${s.lastFrame}`).join(', ')})\n`);
         } catch (e) {
@@ -75,11 +91,10 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
         entry.seconds = (performance.now() - started) / 1000;
       }
       report.finished = new Date().toISOString();
-      const json = path.resolve(opts.report);
       writeOutputFile(json, Buffer.from(`${JSON.stringify(report, null, 2)}\n`));
-      writeOutputFile(json.replace(/\.json$/, '.html'), Buffer.from(batchHtml(report)));
+      writeOutputFile(html, Buffer.from(batchHtml(report)));
       const bad = report.shots.filter((s) => s.status !== 'ok').length;
-      if (!opts.quiet) io.stderr(`batch: ${report.shots.length - bad} of ${report.shots.length} shots rendered; report in ${json} and ${json.replace(/\.json$/, '.html')}\n`);
+      if (!opts.quiet) io.stderr(`batch: ${report.shots.length - bad} of ${report.shots.length} shots rendered; report in ${json} and ${html}\n`);
       if (io.signal?.aborted) setExit(ExitCode.interrupted);
       else if (bad) setExit(ExitCode.framesFailed);
     });
