@@ -1,11 +1,9 @@
 // What `straylight lens` reports: the lens's computed first-order data and its ghosts ranked by
-// strength, and a cross-section plot with the strongest ghost's traced rays.
+// strength (the drawing is plot/lens.ts).
 
-import { FloatImage } from '../raster/image.js';
-import { drawLine, drawPolyline, fill, type Rgb } from '../raster/draw.js';
 import { prepareLens, type LensSystem } from './ghost-system.js';
-import { ghostPath, vertexZ, type LensModel } from './lens.js';
-import { RayHit, planPath, tracePoints, traceRay } from './trace.js';
+import { ghostPath, type LensModel } from './lens.js';
+import { RayHit, planPath, traceRay } from './trace.js';
 
 export interface GhostRow {
   /** the ghost's name in a shot's flare.ghosts.paths and solo: "first-second" */
@@ -135,61 +133,4 @@ export function formatLensReport(r: LensReport, source: string, limit = 20): str
   lines.push('get through the barrel and the stop, light on the axis, widest aperture; strength: paraxial peak irradiance over');
   lines.push('the irradiance entering the lens, times the transmission of the path\'s other surfaces.');
   return lines.join('\n') + '\n';
-}
-
-const INK: Rgb = [0.85, 0.85, 0.85];
-const GLASS: Rgb = [0.35, 0.55, 0.85];
-const STOP: Rgb = [1, 0.8, 0.2];
-const RAY: Rgb = [1, 0.35, 0.25];
-
-/** Cross-section of the lens (meridional plane) with the strongest ghost's rays, as an image. */
-export function lensPlot(lens: LensModel, system: LensSystem, widthPx = 1400, heightPx = 600): FloatImage {
-  const img = new FloatImage(widthPx, heightPx);
-  fill(img, [0.04, 0.04, 0.05]);
-  const z = vertexZ(lens);
-  const maxSemi = Math.max(...lens.surfaces.filter((s) => !s.stop).map((s) => s.semiDiameterMm));
-  const lengthMm = z[z.length - 1];
-  const margin = 40;
-  const scale = Math.min((widthPx - 2 * margin) / (lengthMm + 10), (heightPx - 2 * margin) / (2.4 * maxSemi));
-  const X = (zz: number) => margin + (zz + 5) * scale;
-  const Y = (yy: number) => heightPx / 2 - yy * scale;
-  drawLine(img, X(-5), Y(0), X(lengthMm + 5), Y(0), 1, [0.3, 0.3, 0.3]);
-  // sensor
-  drawLine(img, X(lengthMm), Y(-lens.sensorWidthMm / 2), X(lengthMm), Y(lens.sensorWidthMm / 2), 2, INK);
-  lens.surfaces.forEach((s, k) => {
-    const h = s.semiDiameterMm;
-    if (s.stop) {
-      const r = (system.focalLengthMm / (2 * lens.fNumberMin)) * system.stopRatio;
-      drawLine(img, X(z[k]), Y(r), X(z[k]), Y(r + 0.25 * maxSemi), 3, STOP);
-      drawLine(img, X(z[k]), Y(-r), X(z[k]), Y(-r - 0.25 * maxSemi), 3, STOP);
-      return;
-    }
-    // the surface's profile: sag z(y) = R - sign(R) sqrt(R^2 - y^2)
-    const pts: number[] = [];
-    for (let t = -1; t <= 1.0001; t += 0.05) {
-      const y = t * h;
-      const sag = s.radiusMm === 0 ? 0 : s.radiusMm - Math.sign(s.radiusMm) * Math.sqrt(Math.max(0, s.radiusMm ** 2 - y * y));
-      pts.push(X(z[k] + sag), Y(y));
-    }
-    drawPolyline(img, pts, 2, s.glass.kind === 'air' && (k === 0 || lens.surfaces[k - 1].glass.kind === 'air') ? INK : GLASS);
-  });
-  // the strongest ghost: a fan of meridional rays from a light slightly off axis
-  const g = system.ranked[0];
-  if (g) {
-    const plan = planPath(lens, ghostPath(lens, g), 550, (system.focalLengthMm / (2 * lens.fNumberMin)) * system.stopRatio);
-    const hit = new RayHit();
-    const slope = 0.05;
-    const norm = 1 / Math.hypot(1, slope);
-    const ep = system.focalLengthMm / (2 * lens.fNumberMin);
-    for (let t = -1; t <= 1.0001; t += 0.25) {
-      const y0 = t * ep * 0.95;
-      const launch = 5;
-      const pts = tracePoints(plan, 0, y0 - launch * slope, -launch, 0, slope * norm, norm, hit);
-      if (pts.length === 0 || hit.vignette > 1) continue;
-      const xy: number[] = [X(-launch), Y(y0 - launch * slope)];
-      for (let q = 0; q < pts.length; q += 2) xy.push(X(pts[q]), Y(pts[q + 1]));
-      drawPolyline(img, xy, 1.2, RAY);
-    }
-  }
-  return img;
 }

@@ -176,7 +176,9 @@ describe('straylight lens', () => {
     expect(report.focalLengthMm).toBeCloseTo(50, 3);
     expect(report.ghosts).toHaveLength(15);
     const png = decode(readFileSync(plot));
-    expect([png.width, png.height]).toEqual([1400, 600]);
+    // the page is as wide as the lens needs at its height (at least 900), and 620 high
+    expect(png.height).toBe(620);
+    expect(png.width).toBeGreaterThanOrEqual(900);
   });
 
   it('an unknown lens exits 3 with a hint', async () => {
