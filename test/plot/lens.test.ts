@@ -31,6 +31,22 @@ describe('lens --plot', () => {
     expect(svg).toContain('ghost 9-5 (rank 4): reflects at surface 9, then at 5');
   });
 
+  it('--plot-ghosts names the strongest ghosts where they land, on the line through the centre and the light', async () => {
+    const dir = tempDir();
+    const svgFile = path.join(dir, 'ghosts.svg');
+    const r = await cli(['lens', 'double-gauss-50', '--plot-ghosts', svgFile, '--light', '1400,300']);
+    expect(r.code).toBe(0);
+    const svg = readFileSync(svgFile, 'utf8');
+    expect(() => new Resvg(svg).render()).not.toThrow();
+    expect(svg).toMatch(/<image href="data:image\/png;base64,/);
+    // ghost centres are collinear with the optical centre and the light (Koreban & Schechner,
+    // "Geometry by deflaring", ICCP 2009); the map is drawn at half size with a 30 px margin
+    const marks = [...svg.matchAll(/class="ghost-mark" data-ghost="([\d-]+)"><circle cx="([\d.]+)" cy="([\d.]+)"/g)].map((m) => ({ name: m[1], x: Number(m[2]) - 30, y: Number(m[3]) - 64 }));
+    expect(marks.length).toBeGreaterThan(5);
+    const [cx, cy, lx, ly] = [480, 270, 700, 150];
+    for (const m of marks) expect(Math.abs((lx - cx) * (m.y - cy) - (ly - cy) * (m.x - cx)) / Math.hypot(lx - cx, ly - cy)).toBeLessThan(0.05);
+  });
+
   it('refuses a ghost the table does not have', async () => {
     const r = await cli(['lens', 'triplet-50', '--plot', path.join(tempDir(), 'l.svg'), '--ghost', '99']);
     expect(r.code).toBe(2);
