@@ -243,5 +243,32 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   rows.push(['check: resolve a shot of 100 vs 1,000 lights (the cap)', `${ms(a)} vs ${ms(b)} (x${(b / a).toFixed(1)})`]);
 }
 
+// --- pictures: a chart as SVG and as PNG, the lens drawing, and the batch report's page for 100 shots
+{
+  const { visibilitySvg } = await import('../src/plot/visibility.js');
+  const { lensSvg } = await import('../src/plot/lens.js');
+  const { svgToPng } = await import('../src/io/svg-png.js');
+  const { batchHtml } = await import('../src/render/batch-report.js');
+  const chart = {
+    title: 'bench',
+    first: 1001,
+    last: 1240,
+    timecode: (n: number) => String(n),
+    curves: [0, 1, 2].map((k) => ({ name: `light ${k}`, values: Array.from({ length: 240 }, (_, i) => 0.5 + 0.5 * Math.sin(i / 9 + k)), offFrame: Array.from({ length: 240 }, (_, i) => i < 20) })),
+  };
+  const svgMs = time(() => visibilitySvg(chart));
+  const svg = visibilitySvg(chart);
+  const pngMs = time(() => svgToPng(svg));
+  const zoomFile = presetPath('zoom-like-35');
+  const zoom = parseLensText(readFileSync(zoomFile, 'utf8'), zoomFile, 'zoom-like-35').model!;
+  const zoomSystem = prepareLens(zoom, 'medium', 0);
+  const lensMs = time(() => svgToPng(lensSvg(zoom, zoomSystem)));
+  const shotEntry = { shot: 'shots/x.yaml', status: 'ok' as const, frames: 240, written: 240, skipped: 0, failed: [], seconds: 60, flashes: [], warnings: [], range: { first: 1001, last: 1240, timecode: '01:00:00:00 - 01:00:09:23' }, lens: 'preset zoom-like-35, f/4', visibility: svg };
+  const report = { tool: 'bench', started: new Date(0).toISOString(), finished: new Date(3600e3).toISOString(), shots: Array.from({ length: 100 }, () => shotEntry) };
+  const pageMs = time(() => batchHtml(report));
+  rows.push(['pictures: visibility chart SVG; as PNG; lens drawing as PNG (target < 200 ms)', `${ms(svgMs)}; ${ms(pngMs)}; ${ms(lensMs)}`]);
+  rows.push(['batch report page for 100 shots, charts inlined (target < 2 s)', ms(pageMs)]);
+}
+
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
 for (const [name, v] of rows) console.log(`  ${name.padEnd(58)} ${v}`);
