@@ -84,14 +84,16 @@ export interface ResolvedLight {
   flare?: LightFlare;
 }
 
-/** The flare settings one light is drawn with. */
+/** The flare settings the shot's lights are drawn with (the shot's, or a light's own). */
 export interface LightFlare {
   glow: GlowSettings;
   ghosts: GhostSettings;
   starburst: StarburstSettings;
+  /** the veil: fraction of all visible flux lifted uniformly over the frame */
   veil: { fraction: number };
   streak: StreakSettings;
   dust: DustSettings;
+  /** on/off and keyframable gain for each element */
   elements: Record<ElementName, ElementControl>;
 }
 
@@ -175,24 +177,16 @@ export interface ResolvedOutput {
   exr: { type: 'half' | 'float'; compression: 'none' | 'zips' | 'zip' };
 }
 
-export interface ResolvedShot {
+/** The shot: its frame and lights, its flare settings (LightFlare's, which a light may override), and the rest. */
+export interface ResolvedShot extends LightFlare {
   version: 1;
   /** absolute path of the shot file */
   file: string;
   frame: ResolvedFrame;
   seed: number;
   lights: ResolvedLight[];
-  glow: GlowSettings;
   /** absent: the shot names no lens, and no ghosts are rendered */
   lens?: ResolvedLens;
-  ghosts: GhostSettings;
-  starburst: StarburstSettings;
-  /** the veil: fraction of all visible flux lifted uniformly over the frame */
-  veil: { fraction: number };
-  streak: StreakSettings;
-  dust: DustSettings;
-  /** on/off and keyframable gain for each element */
-  elements: Record<ElementName, ElementControl>;
   mattes: ResolvedMatte[];
   shutter: ShutterSettings;
   output: ResolvedOutput;

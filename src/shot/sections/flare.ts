@@ -3,7 +3,7 @@
 
 import { LINEAR } from '../../timeline/easing.js';
 import type { Field, MapField } from '../source.js';
-import type { DustSettings, ElementControl, ElementName, GhostSettings, GlowSettings, ResolvedLens, StarburstSettings, StreakSettings } from '../types.js';
+import type { DustSettings, ElementControl, ElementName, GhostSettings, GlowSettings, LightFlare, ResolvedLens, StarburstSettings, StreakSettings } from '../types.js';
 import type { ResolveContext } from './context.js';
 import { resolveColour, scalarKeys } from './keys.js';
 
@@ -26,16 +26,9 @@ export function elementControl(ctx: ResolveContext, m: MapField | undefined, bas
 }
 
 /** What the flare section resolves to (the shot's, or a light's own on top of the shot's). */
-export interface ResolvedFlareBase {
-  glow: GlowSettings;
-  ghosts: GhostSettings;
-  starburst: StarburstSettings;
-  veil: { fraction: number };
-  streak: StreakSettings;
+export interface ResolvedFlareBase extends LightFlare {
   streakGiven: boolean;
-  dust: DustSettings;
   dustSeedGiven: boolean;
-  elements: Record<ElementName, ElementControl>;
 }
 
 /**
