@@ -40,6 +40,8 @@ export interface SequenceOptions {
   onCells?: (frame: number, cells: FlashCells) => void;
   /** tests only: make a worker fail or crash on a frame */
   fault?: WorkerFault;
+  /** a plan already made by planSequence with these same options (spares hashing every file twice) */
+  plan?: SequencePlan;
 }
 
 export type FrameEvent =
@@ -137,7 +139,7 @@ export function refuseForeign(foreign: string[]): void {
 }
 
 export async function renderSequence(shot: ResolvedShot, opts: SequenceOptions = {}): Promise<SequenceResult> {
-  const { template, hash, manifest: mine, kept, todo, foreign, warnings } = planSequence(shot, opts);
+  const { template, hash, manifest: mine, kept, todo, foreign, warnings } = opts.plan ?? planSequence(shot, opts);
   // never replace what straylight did not write: said before anything is written
   refuseForeign(foreign);
   const folder = path.dirname(template);

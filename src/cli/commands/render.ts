@@ -96,9 +96,10 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
         progress.passes = sequences.length;
       }
       const result = { written: [] as number[], skipped: [] as number[], failed: [] as { frame: number; error: string; badInput: boolean }[], interrupted: false, manifest: '' };
-      for (const seq of sequences) {
+      for (const [qi, seq] of sequences.entries()) {
         if (result.interrupted) break;
         const r = await renderSequence(seq.shot, {
+          plan: plans[qi],
           frames,
           template: template ? writtenTemplate(seq, template) : undefined,
           shard,
