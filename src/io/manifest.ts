@@ -148,6 +148,13 @@ export function writeManifest(file: string, m: Manifest): void {
 
 /** How long a manifest lock may be held before another process takes it over, ms. */
 const STALE_LOCK_MS = 60_000;
+/** ...or, when its process is not running on this machine, this long. */
+const DEAD_LOCK_MS = 2_000;
+/**
+ * Temporary files are removed only when this old and their process is not running here: a frame
+ * takes seconds to write, and on a farm another machine's process ids are not ours to judge.
+ */
+const STALE_TEMP_MS = 10 * 60_000;
 const sleeper = new Int32Array(new SharedArrayBuffer(4));
 
 function alive(pid: number): boolean {
@@ -178,7 +185,10 @@ export function withManifestLock<T>(manifestFile: string, fn: () => T, timeoutMs
       let stale = false;
       try {
         const pid = Number(readFileSync(lock, 'utf8'));
-        stale = (Number.isInteger(pid) && pid > 0 && !alive(pid)) || Date.now() - statSync(lock).mtimeMs > STALE_LOCK_MS;
+        // a process id means nothing on another machine sharing the folder: a lock whose process is
+        // gone here is taken over only once it is a few seconds old (locks are held for milliseconds)
+        const age = Date.now() - statSync(lock).mtimeMs;
+        stale = age > STALE_LOCK_MS || (Number.isInteger(pid) && pid > 0 && !alive(pid) && age > DEAD_LOCK_MS);
       } catch {
         // the holder removed it meanwhile (or wrote nothing yet): try again
       }
@@ -221,11 +231,11 @@ export function strayTempFiles(template: string): { file: string; pid: number; m
   return out.sort((a, b) => (a.file < b.file ? -1 : 1));
 }
 
-/** Remove the stray temporary files of processes that are gone; returns how many were removed. */
+/** Remove stray temporary files left long ago by processes that are gone; returns how many. */
 export function cleanStrayTempFiles(template: string): number {
   let n = 0;
   for (const s of strayTempFiles(template)) {
-    if (s.pid === process.pid || alive(s.pid)) continue;
+    if (s.pid === process.pid || alive(s.pid) || Date.now() - s.mtimeMs < STALE_TEMP_MS) continue;
     rmSync(s.file, { force: true });
     n++;
   }

@@ -68,7 +68,7 @@ export function formatVerify(r: VerifyReport): string {
   const list = (xs: (number | string)[]) => (xs.length > 20 ? `${xs.slice(0, 20).join(', ')} ... (${xs.length})` : xs.join(', '));
   if (r.missing.length) lines.push(`  missing: ${list(r.missing)}`);
   if (r.corrupt.length) lines.push(`  corrupt (differs from the manifest): ${list(r.corrupt)}`);
-  if (r.temporary.length) lines.push(`  temporary files left by an interrupted write (safe to delete; the next render removes them): ${list(r.temporary)}`);
+  if (r.temporary.length) lines.push(`  temporary files left by an interrupted write (safe to delete when no render is running; the next render removes those over 10 minutes old): ${list(r.temporary)}`);
   if (r.hashes.length > 1) lines.push(`  note: manifests of ${r.hashes.length} different renders of the shot are here; only the current one counts`);
   if (total === 0) lines.push('  no manifest found: render the shot first');
   return lines.join('\n') + '\n';

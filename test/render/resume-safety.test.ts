@@ -153,18 +153,25 @@ describe('resume and output safety', () => {
     expect(repair.stderr).toContain('rendered 1 frame ');
   });
 
-  it('reports stray temporary files in verify and removes those of dead processes on the next render', async () => {
+  it('reports stray temporary files in verify; the next render removes old ones of gone processes, not fresh ones', async () => {
     const dir = tempDir();
     const file = shotWithMatte(dir);
     expect((await cli(['render', file, '--jobs', '1', '--quiet'])).code).toBe(0);
     // pid 999999999 is above any Linux pid_max (4194304): no such process
     const stray = path.join(dir, 'out', '.f.0003.png.999999999.0.tmp');
     writeFileSync(stray, 'half a frame');
+    // a fresh one (another machine's write in progress, perhaps) is left alone
+    const fresh = path.join(dir, 'out', '.f.0004.png.999999998.0.tmp');
+    writeFileSync(fresh, 'being written');
+    // an hour old: left by an interrupted render
+    const hourAgo = new Date(Date.now() - 3600e3);
+    utimesSync(stray, hourAgo, hourAgo);
     const v = await cli(['verify', file]);
-    expect(v.stdout).toContain(`temporary files left by an interrupted write (safe to delete; the next render removes them): ${stray}`);
+    expect(v.stdout).toContain(`temporary files left by an interrupted write (safe to delete when no render is running; the next render removes those over 10 minutes old): ${stray}`);
     const r = await cli(['render', file, '--jobs', '1']);
     expect(r.stderr).toContain(`warning: removed 1 temporary file left in ${path.join(dir, 'out')} by an interrupted render`);
     expect(existsSync(stray)).toBe(false);
+    expect(existsSync(fresh)).toBe(true);
   });
 
   it('screens frames kept from an earlier render too: a rerun on a flashing sequence still warns and fails on flash', async () => {
