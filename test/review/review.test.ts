@@ -10,7 +10,6 @@ import { describe, expect, it } from 'vitest';
 import { ExitCode } from '../../src/errors.js';
 import { encodePng } from '../../src/io/png.js';
 import { FloatImage } from '../../src/raster/image.js';
-import { GLYPH_H, GLYPH_W, GLYPHS } from '../../src/review/font.js';
 import { SHEET_LAYOUT } from '../../src/review/sheet.js';
 import { cli, tempDir } from '../helpers.js';
 
@@ -34,22 +33,14 @@ output: { path: "${output}" }
   return f;
 }
 
-/** Read glyphs back from a decoded 8-bit RGB image: text drawn by the sheet at (x, y). */
-function readText(png: ReturnType<typeof decode>, x: number, y: number, scale: number, length: number): string {
-  const ch = png.channels;
-  const lit = (px: number, py: number) => (png.data[(py * png.width + px) * ch] as number) > 200;
-  let out = '';
-  for (let k = 0; k < length; k++) {
-    const rows: number[] = [];
-    for (let row = 0; row < GLYPH_H; row++) {
-      let bits = 0;
-      for (let col = 0; col < GLYPH_W; col++) bits = (bits << 1) | (lit(x + k * (GLYPH_W + 1) * scale + col * scale, y + row * scale) ? 1 : 0);
-      rows.push(bits);
-    }
-    const hit = Object.entries(GLYPHS).find(([, g]) => g.every((v, i) => v === rows[i]));
-    out += hit ? hit[0] : '?';
-  }
-  return out;
+/** The labels of a sheet written as SVG: frame numbers and timecodes by frame, with their x. */
+function sheetLabels(svg: string): { numbers: number[]; timecodes: Record<number, { text: string; x: number }> } {
+  const numbers = [...svg.matchAll(/class="frame-number" data-frame="(\d+)"[^>]*>(\d+)</g)].map((m) => {
+    expect(m[2]).toBe(m[1]);
+    return Number(m[1]);
+  });
+  const timecodes = Object.fromEntries([...svg.matchAll(/<text x="([\d.]+)" y="[\d.]+" class="timecode" data-frame="(\d+)"[^>]*>([^<]+)</g)].map((m) => [Number(m[2]), { text: m[3], x: Number(m[1]) }]));
+  return { numbers, timecodes };
 }
 
 function ffprobe(file: string): Record<string, string> {
@@ -68,22 +59,27 @@ describe('contact sheets', () => {
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toContain('4 frames (1-10, every 3)');
     const png = decode(readFileSync(path.join(dir, 's.png')));
-    const { margin, gap, textScale, labelGap } = SHEET_LAYOUT;
-    const label = GLYPH_H * textScale;
-    // tiles at the frames' own size (64 < the 320 default): 2 columns, 2 rows
-    expect([png.width, png.height]).toEqual([margin * 2 + 2 * 64 + gap, margin * 2 + 2 * (36 + labelGap + label) + gap]);
-    const at = (k: number) => ({ x: margin + (k % 2) * (64 + gap), y: margin + Math.floor(k / 2) * (36 + labelGap + label + gap) + 36 + labelGap });
-    expect([0, 1, 2, 3].map((k) => readText(png, at(k).x, at(k).y, textScale, k === 3 ? 2 : 1))).toEqual(['1', '4', '7', '10']);
-    // timecode right-aligned in the label strip: frame 10 of a 24 fps shot starting at 01:00:00:00
-    const tc = '01:00:00:09';
-    const tcWidth = (tc.length * (GLYPH_W + 1) - 1) * textScale;
-    const tcX = at(3).x + 64 - tcWidth;
+    const { margin, gap, title, label } = SHEET_LAYOUT;
+    // tiles at the frames' own size (64 < the 320 default): 2 columns, 2 rows, under the title strip
+    expect([png.width, png.height]).toEqual([margin * 2 + 2 * 64 + gap, margin * 2 + title + 2 * (36 + label) + gap]);
+    const at = (k: number) => ({ x: margin + (k % 2) * (64 + gap), y: margin + title + Math.floor(k / 2) * (36 + label + gap) });
+    // the labels, in the shipped font: read from the same sheet written as SVG
+    expect((await cli(['sheet', f, '-o', path.join(dir, 's.svg'), '--every', '3', '--columns', '2'])).code).toBe(0);
+    const svg = readFileSync(path.join(dir, 's.svg'), 'utf8');
+    const labels = sheetLabels(svg);
+    expect(labels.numbers).toEqual([1, 4, 7, 10]);
     // the timecode is wider than the tile here (64 px): it is left out rather than overprinted
-    expect(readText(png, tcX, at(3).y, textScale, tc.length)).not.toBe(tc);
+    expect(labels.timecodes).toEqual({});
+    expect(svg).toContain('class="sheet-title"');
+    expect(svg).toContain('shot.yaml, frames 1-10 every 3');
+    // the label strip has ink: text was drawn under the first tile
+    let ink = 0;
+    for (let y = at(0).y + 36; y < at(0).y + 36 + label; y++) for (let x = at(0).x; x < at(0).x + 20; x++) if ((png.data[(y * png.width + x) * png.channels] as number) > 150) ink++;
+    expect(ink).toBeGreaterThan(5);
     // each tile shows its own frame: the light moves right from frame 1 to 4, 7 and 10
     const centre = (k: number) => {
       // the disk is clipped white: the middle of the white run along the light's row
-      const row = at(k).y - labelGap - 36 + 18;
+      const row = at(k).y + 18;
       const white = [...Array(64).keys()].filter((x) => png.data[(row * png.width + at(k).x + x) * png.channels] === 255);
       return (white[0] + white[white.length - 1] + 1) / 2;
     };
@@ -102,14 +98,15 @@ describe('contact sheets', () => {
     const r = await cli(['sheet', f, '-o', path.join(dir, 's.png'), '--over', path.join(dir, 'plate', 'p.#.png')]);
     expect(r.code, r.stderr).toBe(0);
     const png = decode(readFileSync(path.join(dir, 's.png')));
-    const { margin, textScale, labelGap } = SHEET_LAYOUT;
-    const tc = '10:00:00:02';
-    const tcWidth = (tc.length * (GLYPH_W + 1) - 1) * textScale;
+    const { margin, title } = SHEET_LAYOUT;
     const k = 2;
     const x0 = margin + k * (200 + SHEET_LAYOUT.gap);
-    expect(readText(png, x0 + 200 - tcWidth, margin + 60 + labelGap, textScale, tc.length)).toBe(tc);
+    // frame 3 of a shot starting at 10:00:00:00, right-aligned to its tile's edge
+    expect((await cli(['sheet', f, '-o', path.join(dir, 's.svg'), '--over', path.join(dir, 'plate', 'p.#.png')])).code).toBe(0);
+    const labels = sheetLabels(readFileSync(path.join(dir, 's.svg'), 'utf8'));
+    expect(labels.timecodes[3]).toEqual({ text: '10:00:00:02', x: x0 + 200 });
     // a corner of the tile far from the light shows the plate: code 128 (the pass adds a little glow)
-    const corner = png.data[((margin + 1) * png.width + x0 + 1) * png.channels] as number;
+    const corner = png.data[((margin + title + 1) * png.width + x0 + 1) * png.channels] as number;
     expect(corner).toBeGreaterThanOrEqual(128);
     expect(corner).toBeLessThanOrEqual(131);
   });
@@ -121,9 +118,9 @@ describe('contact sheets', () => {
     expect((await cli(['render', f, '--quiet'])).code).toBe(0);
     expect((await cli(['sheet', f, '-o', path.join(dir, 's.png')])).code).toBe(0);
     const png = decode(readFileSync(path.join(dir, 's.png')));
-    const { margin, textScale, labelGap } = SHEET_LAYOUT;
+    const { margin, title, label } = SHEET_LAYOUT;
     // 64x36 stored pixels twice as wide as tall: shown 128x36, two tiles in a row
-    expect([png.width, png.height]).toEqual([2 * margin + 2 * 128 + SHEET_LAYOUT.gap, 2 * margin + 36 + labelGap + GLYPH_H * textScale]);
+    expect([png.width, png.height]).toEqual([2 * margin + 2 * 128 + SHEET_LAYOUT.gap, 2 * margin + title + 36 + label]);
   });
 
   it('a missing plate frame is a clear error and writes no sheet', async () => {
