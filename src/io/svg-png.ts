@@ -14,12 +14,12 @@ function font(): string {
   return fontFile;
 }
 
-/** Rasterise an SVG document to PNG bytes at its own size (times `scale`). */
-export function svgToPng(svg: string, scale = 1): Buffer {
+/** Rasterise an SVG document to PNG bytes at its own size (times `scale`), over `background` (null: transparent). */
+export function svgToPng(svg: string, scale = 1, background: string | null = '#ffffff'): Buffer {
   const r = new Resvg(svg, {
     font: { fontFiles: [font()], loadSystemFonts: false, defaultFontFamily: 'DejaVu Sans' },
     fitTo: scale === 1 ? { mode: 'original' } : { mode: 'zoom', value: scale },
-    background: '#ffffff',
+    ...(background ? { background } : {}),
   });
   return r.render().asPng();
 }

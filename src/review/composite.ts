@@ -9,13 +9,16 @@ import { FloatImage } from '../raster/image.js';
 import { OutputError } from '../errors.js';
 import type { LinearFrame } from '../io/read-frame.js';
 import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
+import { burnInto, type BurnIn } from './burn-in.js';
 
-export function writeComposites(src: SequenceSource, plate: string, template: string, signal?: AbortSignal): number {
+export function writeComposites(src: SequenceSource, plate: string, template: string, signal?: AbortSignal, burnIn?: BurnIn): number {
   let written = 0;
   for (const f of src.frames) {
     if (signal?.aborted) throw new OutputError(`${template}: interrupted after ${written} review frames`);
     const frame = readSource(src, f);
-    writeCompositeFrame(addPlate(frame, readPlate(plate, f, frame.width, frame.height)), expandFramePath(template, f));
+    const over = addPlate(frame, readPlate(plate, f, frame.width, frame.height));
+    if (burnIn) burnInto(over, burnIn, f);
+    writeCompositeFrame(over, expandFramePath(template, f));
     written++;
   }
   return written;

@@ -15,6 +15,7 @@ import { passAlpha } from '../io/png.js';
 import { quantiser } from '../io/quantise.js';
 import { framesToTimecode } from '../timeline/timecode.js';
 import { expandFramePath } from '../format/frame-path.js';
+import { burnInto, type BurnIn } from './burn-in.js';
 import { writeCompositeFrame } from './composite.js';
 import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
 
@@ -95,7 +96,7 @@ export interface MovieResult {
  * Encode the source (plus a plate) to `file` through ffmpeg. With a plate and `composites`, each
  * composited frame is also written there as a review PNG, in the same pass.
  */
-export async function writeMovie(src: SequenceSource, file: string, opts: { over?: string; composites?: string; ffmpeg?: string; signal?: AbortSignal }): Promise<MovieResult> {
+export async function writeMovie(src: SequenceSource, file: string, opts: { over?: string; composites?: string; ffmpeg?: string; signal?: AbortSignal; burnIn?: BurnIn }): Promise<MovieResult> {
   const kind = movieKind(file);
   const ffmpeg = opts.ffmpeg ?? findFfmpeg();
   const target = path.resolve(file);
@@ -115,10 +116,9 @@ export async function writeMovie(src: SequenceSource, file: string, opts: { over
     for (const f of src.frames) {
       if (opts.signal?.aborted) throw new OutputError(`${file}: interrupted; no movie written`);
       const frame = f === src.frames[0] ? first : readSource(src, f);
-      if (opts.over) {
-        addPlate(frame, readPlate(opts.over, f, frame.width, frame.height));
-        if (opts.composites) writeCompositeFrame(frame, expandFramePath(opts.composites, f));
-      }
+      if (opts.over) addPlate(frame, readPlate(opts.over, f, frame.width, frame.height));
+      if (opts.burnIn) burnInto(frame, opts.burnIn, f);
+      if (opts.over && opts.composites) writeCompositeFrame(frame, expandFramePath(opts.composites, f));
       if (child.exitCode !== null) break;
       await write(movieFrame(kind, frame.rgb, opts.over !== undefined));
     }

@@ -16,6 +16,8 @@ import { FlashAnalyser } from '../../safety/flash.js';
 import { findFfmpeg, movieKind, writeMovie } from '../../review/movie.js';
 import { checkPlateTemplate, compositeTemplate, timecodeOf } from '../../review/source.js';
 import { writeComposites } from '../../review/composite.js';
+import { VERSION } from '../../version.js';
+import { framesToTimecode } from '../../timeline/timecode.js';
 import type { CommandContext } from '../context.js';
 import { formatFlashReport } from '../flash-report.js';
 import { fraction, frameList, memorySize, parseFrameRange, parseShard, positiveInt, QUALITIES } from '../options.js';
@@ -43,12 +45,14 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
     .addOption(new Option('--quality <q>', "ghost quality, instead of the shot's, for a quick look (needs --out away from the shot's output)").choices([...QUALITIES]))
     .addOption(new Option('--scale <s>', "render at this fraction of the frame size (e.g. 0.5), positions and sizes scaled (needs --out away from the shot's output)").argParser(fraction('--scale')))
     .option('--movie <file>', 'then encode a review movie with ffmpeg: .mov (ProRes 4444 with alpha) or .mp4 (H.264)')
+    .option('--burn-in', 'print the shot, frame, timecode, lens and version along the bottom of the --movie and --over review frames (never the pass)')
     .option('--over <plate>', 'then write review frames of the pass added over this background plate sequence (linear light; NAME.over.####.png), and make any --movie from them')
-    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; maxMemory?: number; failOnFlash?: boolean; quality?: GhostQuality; scale?: number; movie?: string; over?: string; format?: OutputFormat; alpha?: AlphaMode }) => {
+    .action(async (shotFile: string, opts: { frames?: string; out?: string; jobs?: number; shard?: string; force?: boolean; progress?: 'line' | 'json'; quiet?: boolean; maxMemory?: number; failOnFlash?: boolean; quality?: GhostQuality; scale?: number; movie?: string; over?: string; burnIn?: boolean; format?: OutputFormat; alpha?: AlphaMode }) => {
       // review options are checked before any work, so an overnight render does not fail at the end
       if (opts.movie) movieKind(opts.movie);
       const ffmpeg = opts.movie ? findFfmpeg() : undefined;
       checkPlateTemplate(opts.over);
+      if (opts.burnIn && !opts.movie && !opts.over) throw new UsageError('--burn-in marks review frames: give --movie or --over too (the pass itself is never marked)');
       if ((opts.movie || opts.over) && opts.shard) throw new UsageError(`${opts.movie ? '--movie' : '--over'} needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)`);
       const loaded = withOutputOptions(loadShot(shotFile), opts);
       // look-dev overrides never write into the full render's folder (nor touch its manifest)
@@ -160,12 +164,21 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
       if ((opts.movie || opts.over) && !result.interrupted && result.failed.length === 0) {
         const templates = sequences.map((q) => writtenTemplate(q, template));
         const src = { templates, frames: frameList(frames), rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect };
+        const fn = shot.lens?.fNumber.map((k) => k.value) ?? [];
+        const burnIn = opts.burnIn
+          ? {
+              shot: path.basename(shotFile),
+              ...(shot.lens ? { lens: `${shot.lens.source} f/${Math.min(...fn)}${fn.length > 1 ? `-${Math.max(...fn)}` : ''}` } : {}),
+              version: `straylight ${VERSION}`,
+              timecode: (n: number) => framesToTimecode(shot.frame.timecodeStartFrames + n - shot.frame.first, shot.frame.rate, shot.frame.dropFrame),
+            }
+          : undefined;
         // composites and movie in one pass over the frames
         const review = opts.over ? compositeTemplate(template ?? shot.output.template) : undefined;
         if (opts.movie) {
-          const movie = await writeMovie(src, opts.movie, { over: opts.over, composites: review, ffmpeg, signal: io.signal });
+          const movie = await writeMovie(src, opts.movie, { over: opts.over, composites: review, ffmpeg, signal: io.signal, burnIn });
           if (!opts.quiet) io.stderr(`movie: ${movie.file} (${movie.frames} frames, ${movie.kind === 'h264' ? 'H.264' : 'ProRes 4444 with alpha'}${opts.over ? ', over the plate' : ''})\n`);
-        } else if (opts.over) writeComposites(src, opts.over, review!, io.signal);
+        } else if (opts.over) writeComposites(src, opts.over, review!, io.signal, burnIn);
         if (review && !opts.quiet) io.stderr(`review frames: ${review} (${src.frames.length} frames over the plate)\n`);
       }
     });
