@@ -5,6 +5,8 @@
 #   openexr, openimageio-tools  exrheader, oiiotool and idiff read the OpenEXR files we write,
 #              and oiiotool writes the ones our reader must read
 #   ffmpeg     review movies are encoded by it and checked with ffprobe
+#   blender, python3-numpy  the 3-D scene reference: builds and exports the test scene (glTF), reports
+#              where its lights project and renders its depth pass (the exporter needs numpy)
 set -euo pipefail
 need=()
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
@@ -12,6 +14,8 @@ command -v chromium >/dev/null 2>&1 || need+=(chromium)
 command -v exrheader >/dev/null 2>&1 || need+=(openexr)
 command -v oiiotool >/dev/null 2>&1 || need+=(openimageio-tools)
 command -v ffprobe >/dev/null 2>&1 || need+=(ffmpeg)
+command -v blender >/dev/null 2>&1 || need+=(blender)
+/usr/bin/python3 -c 'import numpy' >/dev/null 2>&1 || need+=(python3-numpy)
 if [ ${#need[@]} -gt 0 ]; then
   sudo=""
   [ "$(id -u)" -eq 0 ] || sudo="sudo"

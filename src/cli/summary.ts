@@ -8,6 +8,12 @@ import type { ResolvedShot } from '../shot/types.js';
 import { activeElements } from '../render/passes.js';
 import { formatBytes, planWorkers, type WorkerPlan } from '../render/memory.js';
 import { framesOnDisk } from '../io/read-frame.js';
+import { cameraFocalMm, lightPaths } from '../render/light-paths.js';
+import { focalLength } from '../optics/paraxial.js';
+
+function lensFocal(shot: ResolvedShot): number {
+  return focalLength(shot.lens!.model);
+}
 
 /** Where and how the machine would run it, for `check`. */
 export interface SummaryContext {
@@ -30,17 +36,49 @@ export function shotSummary(shot: ResolvedShot, shown: string, run?: SummaryCont
     ['range', `${f.first}-${f.last} (${count} frames, ${seconds.toFixed(3)} s)`],
     ['timecode', `${tc(f.timecodeStartFrames)} - ${tc(f.timecodeStartFrames + count - 1)}`],
   ];
+  const warnings: string[] = [];
   for (const l of shot.lights) {
     const colour = 'kelvin' in l.colourSpec ? `${l.colourSpec.kelvin} K` : `rgb ${l.colourSpec.rgb.join(' ')}`;
     const values = l.intensity.map((k) => k.value);
     const span = values.length > 1 ? `${Math.min(...values)}..${Math.max(...values)}` : `${values[0]}`;
     const eases = [...new Set(l.position.slice(0, -1).map((k) => easingLabel(k.ease)))].join(', ') || 'constant';
-    lines.push([
-      'light',
-      `${l.name}: ${colour}, radius ${l.radiusPx} px, ${l.position.length} position key(s) (${l.path}; ${eases}), intensity ${span} ${l.intensityUnit}`,
-    ]);
+    const w = l.world;
+    const place = !w
+      ? `${l.position.length} position key(s) (${l.path}; ${eases})`
+      : w.kind === 'point'
+        ? `in the world at ${w.position.length} position key(s) (${w.path})`
+        : w.kind === 'direction'
+          ? `at infinity, ${w.direction.length} direction key(s)`
+          : `scene node ${w.nodeName}${w.light ? ` (${w.light.type} light, ${w.light.intensity.toPrecision(5)} ${w.light.type === 'directional' ? 'lux' : 'cd'})` : ''}`;
+    const level = w?.kind === 'scene' && w.light ? `its scene's level${span === (l.intensityUnit === 'stops' ? '0' : '1') ? '' : `, trimmed ${span} ${l.intensityUnit}`}` : `intensity ${span} ${l.intensityUnit}`;
+    lines.push(['light', `${l.name}: ${colour}, radius ${l.radiusPx} px, ${place}, ${level}`]);
   }
-  const warnings: string[] = [];
+  if (shot.camera) {
+    const c = shot.camera;
+    const fmm = cameraFocalMm(shot, f.first)!;
+    const timing = c.kind === 'scene' ? `; scene time = (frame - ${c.frameOffset}) / ${c.sceneRate} s` : '';
+    lines.push(['camera', `${c.source}: ${fmm.toFixed(2)} mm on ${c.sensorWidthMm} mm at frame ${f.first}${timing}`]);
+    const display = (f.widthPx * f.pixelAspect) / f.heightPx;
+    if (c.kind === 'scene' && c.camera.aspectRatio && Math.abs(c.camera.aspectRatio / display - 1) > 0.01) {
+      warnings.push(`the scene's camera was made for a ${c.camera.aspectRatio.toFixed(3)}:1 frame and this one is ${display.toFixed(3)}:1; its horizontal field fills the width, so the frame shows ${c.camera.aspectRatio > display ? 'more' : 'less'} above and below than the scene's renders`);
+    }
+    if (shot.lens) {
+      const lf = lensFocal(shot);
+      if (Math.abs(lf / fmm - 1) > 0.01) {
+        warnings.push(`the camera's field is that of ${fmm.toFixed(1)} mm on ${c.sensorWidthMm} mm, the lens ${shot.lens.source} is ${lf.toFixed(1)} mm on ${shot.lens.model.sensorWidthMm} mm: the camera decides where lights land; the lens draws its ghosts from those places, as for any light placed there`);
+      }
+    }
+    for (const p of lightPaths(shot)) {
+      const light = shot.lights.find((l) => l.name === p.name)!;
+      if (!light.world) continue;
+      const seen = p.first === undefined ? 'never on the frame' : `on the frame ${p.onFrames} of ${count} frames (first ${p.first}, last ${p.last})`;
+      const near = p.nearest ? `; nearest the centre at frame ${p.nearest.frame} (${p.nearest.xPx.toFixed(1)}, ${p.nearest.yPx.toFixed(1)}), ${p.nearest.distancePx.toFixed(0)} px off` : '';
+      const behind = p.behindFrames ? `; behind the camera on ${p.behindFrames} frames` : '';
+      const depth = p.depth ? `; depth ${p.depth[0].toPrecision(4)}-${p.depth[1].toPrecision(4)}` : '';
+      lines.push(['  path', `${p.name}: ${seen}${near}${behind}${depth}`]);
+      if (p.first === undefined) warnings.push(`the light "${p.name}" is never on the frame: check the camera, the scene's frame offset (camera.scene_frame_offset) and the light's place`);
+    }
+  }
   if (shot.lens) {
     const l = shot.lens;
     const fn = l.fNumber.map((k) => k.value);

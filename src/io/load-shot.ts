@@ -1,6 +1,9 @@
 // Reading a shot file from disk: the file-system edge of shot/resolve.
 
 import { readFileSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { parse } from 'yaml';
+import { readScene, type SceneResult } from './scene-read.js';
 import { InputError, ShotError, whyNotReadable } from '../errors.js';
 import { checkMattes } from './matte-provider.js';
 import { resolveShot } from '../shot/resolve.js';
@@ -17,7 +20,11 @@ export function readTextFile(file: string): string {
   return readFileSync(file, 'utf8');
 }
 
-export function loadShot(file: string): ResolvedShot {
+/**
+ * Read, check and resolve a shot file, with the glTF scene its camera names (read first: reading
+ * a scene is asynchronous, resolving is not).
+ */
+export async function loadShot(file: string): Promise<ResolvedShot> {
   let text: string;
   try {
     text = readTextFile(file);
@@ -28,8 +35,25 @@ export function loadShot(file: string): ResolvedShot {
     throw new InputError(`${file}: not a text file (a YAML shot file was expected)`);
   }
   // messages name the shot as the user wrote it
-  const shot = resolveShot(text, file, { readText: readTextFile, presetNames, presetPath });
+  const scenes = await preloadScenes(text, file);
+  const shot = resolveShot(text, file, { readText: readTextFile, presetNames, presetPath, scene: (abs) => scenes.get(abs) });
   const problems = checkMattes(shot);
   if (problems.length) throw new ShotError(problems);
   return shot;
+}
+
+/** The scene the shot's camera names, read (or the reason it cannot be), by absolute path. */
+async function preloadScenes(text: string, file: string): Promise<Map<string, SceneResult>> {
+  const out = new Map<string, SceneResult>();
+  let doc: unknown;
+  try {
+    doc = parse(text);
+  } catch {
+    return out; // the resolver reports the YAML problem with its place
+  }
+  const cam = (doc as { camera?: { scene?: unknown; animation?: unknown } } | null)?.camera;
+  if (!cam || typeof cam !== 'object' || typeof cam.scene !== 'string' || !/\.(glb|gltf)$/i.test(cam.scene)) return out;
+  const abs = path.resolve(path.dirname(path.resolve(file)), cam.scene);
+  out.set(abs, await readScene(abs, typeof cam.animation === 'string' ? cam.animation : undefined));
+  return out;
 }

@@ -128,3 +128,19 @@ export function ghostPath(lens: LensModel, { i, j }: GhostPair): LightPath {
   for (let k = j + 1; k < lens.surfaces.length; k++) path.push({ surface: k, action: 'refract', dir: 1 });
   return path;
 }
+
+/**
+ * The fraction of the front element's clear aperture (semi-diameter s) that a parallel beam still
+ * fills after passing a hood opening of radius r set `depth` ahead of it, for a beam of slope
+ * `tan`: the area shared by two circles whose centres are depth x tan apart, over the front's
+ * area. 1 while the hood clears the beam, 0 once it cuts it off.
+ */
+export function hoodPassFraction(tan: number, depth: number, r: number, s: number): number {
+  const d = depth * tan;
+  if (!(d < r + s)) return 0;
+  if (d <= Math.abs(r - s)) return r >= s ? 1 : (r * r) / (s * s);
+  const a1 = s * s * Math.acos(Math.min(1, Math.max(-1, (d * d + s * s - r * r) / (2 * d * s))));
+  const a2 = r * r * Math.acos(Math.min(1, Math.max(-1, (d * d + r * r - s * s) / (2 * d * r))));
+  const k = 0.5 * Math.sqrt(Math.max(0, (-d + s + r) * (d + s - r) * (d - s + r) * (d + s + r)));
+  return Math.min(1, Math.max(0, (a1 + a2 - k) / (Math.PI * s * s)));
+}

@@ -15,7 +15,7 @@ import { alphaCoverage, depthCoverage, diskVisibility, type CoverageLookup } fro
 import { FloatImage } from '../raster/image.js';
 import type { LightFlare, ResolvedLight, ResolvedShot } from '../shot/types.js';
 import { evalScalar } from '../timeline/track.js';
-import { lightState } from './frame-state.js';
+import { lightState, type LightState } from './frame-state.js';
 import { shutterTimes } from '../timeline/shutter.js';
 
 /** What a shot needs precomputed before its frames render. */
@@ -69,7 +69,7 @@ export function matteProvider(shot: ResolvedShot): MatteProvider {
 }
 
 /** The coverage lookups that apply to a light at time t (mattes of frame round(t)). */
-export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider): CoverageLookup[] {
+export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider, state: LightState = lightState(shot, light, t)): CoverageLookup[] {
   const out: CoverageLookup[] = [];
   const frame = Math.round(t);
   for (const m of shot.mattes) {
@@ -83,7 +83,8 @@ export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number,
     if (m.kind === 'alpha') {
       out.push(scaled(alphaCoverage(img, m.invert, light.offFrame)));
     } else {
-      const depth = evalScalar(light.depth!, t);
+      // the shot's depth keys, or else the depth the camera sees the light at
+      const depth = light.depth ? evalScalar(light.depth, t) : (state.depth ?? 0);
       out.push(scaled(depthCoverage(img, depth, m.depth!.tolerance, light.offFrame)));
     }
   }
@@ -130,8 +131,9 @@ export function ghostPathMultipliers(settings: Pick<LightFlare, 'ghosts'>, t: nu
 
 /** Visibility of a light at time t (1 without mattes). */
 export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider = matteProvider(shot)): number {
-  const s = lightState(light, t);
-  const lookups = coverageFor(shot, light, t, mattes);
+  const s = lightState(shot, light, t);
+  if (!s.placed) return 0;
+  const lookups = coverageFor(shot, light, t, mattes, s);
   return diskVisibility(s.xPx, s.yPx, s.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect: shot.frame.pixelAspect });
 }
 
@@ -169,9 +171,9 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       // a light with a flare block of its own is drawn with those settings (the shot's, its keys on top)
       const ls: LightFlare = light.flare ?? shot;
       const { gCore, gGlow, gGhosts, gStar, gStreak, gDust, gVeil, ghostPaths } = light.flare ? elementGains(light.flare, t) : shotGains;
-      const s = lightState(light, t);
+      const s = lightState(shot, light, t);
       if (s.gain <= 0) continue;
-      const lookups = coverageFor(shot, light, t, mattes);
+      const lookups = coverageFor(shot, light, t, mattes, s);
       const visibility = diskVisibility(s.xPx, s.yPx, s.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect });
       const radiance: [number, number, number] = [s.radiance[0] * share, s.radiance[1] * share, s.radiance[2] * share];
       const disk = { xPx: s.xPx, yPx: s.yPx, radiusPx: s.radiusPx, radiance };
@@ -193,7 +195,9 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (gCore > 0) addDisk(img, { ...disk, radiance: [radiance[0] * gCore, radiance[1] * gCore, radiance[2] * gCore] }, pixelAspect, clearAt);
       if (visibility <= 0) continue;
       if (assets.lens && gGhosts > 0) {
-        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux }, { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
+        // the ghosts' rays are traced through the hood: they take the light without its field share
+        const ghostFlux = s.field === 1 ? flux : (flux.map((c) => c / s.field) as [number, number, number]);
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux: ghostFlux },  { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
       }
       if (assets.starburst && gStar > 0) {
         const k = ls.starburst.fraction * gStar;

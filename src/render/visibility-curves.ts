@@ -4,15 +4,19 @@
 import type { ResolvedShot } from '../shot/types.js';
 import { shutterTimes } from '../timeline/shutter.js';
 import { framesToTimecode } from '../timeline/timecode.js';
-import { lightGain, lightState } from './frame-state.js';
+import { lightState } from './frame-state.js';
+import { evalScalar } from '../timeline/track.js';
 import { lightVisibility, matteProvider } from './render-frame.js';
 import type { VisibilityChart } from '../plot/visibility.js';
 
 export interface VisibilityRow {
   frame: number;
   light: string;
-  xPx: number;
-  yPx: number;
+  /** where the light is on the frame (undefined: behind the camera) */
+  xPx?: number;
+  yPx?: number;
+  /** the light's depth: its keys, or from the camera (undefined: neither) */
+  depth?: number;
   visibility: number;
   effectiveIntensity: number;
 }
@@ -25,14 +29,19 @@ export function visibilityRows(shot: ResolvedShot): VisibilityRow[] {
     for (const light of shot.lights) {
       let v = 0;
       let g = 0;
+      let vg = 0;
       for (const t of times) {
-        v += lightVisibility(shot, light, t, mattes);
-        g += lightGain(light, t);
+        const vt = lightVisibility(shot, light, t, mattes);
+        const gt = lightState(shot, light, t).gain;
+        v += vt;
+        g += gt;
+        vg += vt * gt;
       }
       v /= times.length;
       g /= times.length;
-      const s = lightState(light, f);
-      rows.push({ frame: f, light: light.name, xPx: s.xPx, yPx: s.yPx, visibility: v, effectiveIntensity: v * g });
+      const s = lightState(shot, light, f);
+      const depth = light.depth ? evalScalar(light.depth, f) : s.depth;
+      rows.push({ frame: f, light: light.name, ...(s.placed ? { xPx: s.xPx, yPx: s.yPx } : {}), ...(depth !== undefined ? { depth } : {}), visibility: v, effectiveIntensity: light.world ? vg / times.length : v * g });
     }
   }
   return rows;
@@ -48,7 +57,7 @@ export function visibilityChart(shot: ResolvedShot, rows: VisibilityRow[], title
     timecode: (n) => framesToTimecode(shot.frame.timecodeStartFrames + (n - shot.frame.first), shot.frame.rate, shot.frame.dropFrame),
     curves: shot.lights.map((light) => {
       const mine = rows.filter((r) => r.light === light.name);
-      return { name: light.name, values: mine.map((r) => r.visibility), offFrame: mine.map((r) => r.xPx < 0 || r.yPx < 0 || r.xPx >= widthPx || r.yPx >= heightPx) };
+      return { name: light.name, values: mine.map((r) => r.visibility), offFrame: mine.map((r) => r.xPx === undefined || r.yPx === undefined || r.xPx < 0 || r.yPx < 0 || r.xPx >= widthPx || r.yPx >= heightPx) };
     }),
   };
 }

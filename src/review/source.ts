@@ -43,9 +43,9 @@ export function rateOption(value: string | undefined): FrameRate {
 }
 
 /** A shot file (every frame of its range must be rendered) or a frame template (the frames on disk). */
-export function openSource(arg: string, rate?: string): SequenceSource {
+export async function openSource(arg: string, rate?: string): Promise<SequenceSource> {
   if (/\.ya?ml$/i.test(arg)) {
-    const shot = loadShot(arg);
+    const shot = await loadShot(arg);
     const templates = outputSequences(shot).map((q) => q.shot.output.template);
     const frames: number[] = [];
     for (let f = shot.frame.first; f <= shot.frame.last; f++) frames.push(f);

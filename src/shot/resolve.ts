@@ -12,6 +12,7 @@ import type { ResolveContext, ShotReader } from './sections/context.js';
 import { DEFAULT_DUST, DEFAULT_GHOSTS, DEFAULT_GLOW, DEFAULT_STARBURST, DEFAULT_STREAK, elementControl, resolveFlare } from './sections/flare.js';
 import { resolveFrame, resolveShutter } from './sections/frame.js';
 import { resolveLens } from './sections/lens.js';
+import { resolveCamera } from './sections/camera.js';
 import { resolveLights } from './sections/lights.js';
 import { resolveMattes } from './sections/mattes.js';
 import { resolveOutput } from './sections/output.js';
@@ -48,10 +49,13 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
   const frame = frameField ? resolveFrame(ctx, frameField) : undefined;
   const seedField = m.get('seed');
   const seed = seedField ? seedField.number({ integer: true, min: 0, max: 2 ** 32 - 1 }) : 0;
-  const lightsField = m.require('lights', 'a list of the lights in the shot');
-  const lights = lightsField ? resolveLights(ctx, lightsField) : undefined;
   const lensField = m.get('lens');
   const lens = lensField ? resolveLens(ctx, lensField) : undefined;
+  const cameraField = m.get('camera');
+  const cam = cameraField ? resolveCamera(ctx, cameraField, frame?.rate, lens?.model.sensorWidthMm) : undefined;
+  if (cam?.scene) ctx.scene = cam.scene;
+  const lightsField = m.require('lights', 'a list of the lights in the shot');
+  const lights = lightsField ? resolveLights(ctx, lightsField) : undefined;
   const mattesField = m.get('mattes');
   const mattes = mattesField ? resolveMattes(ctx, mattesField) : [];
   const shutterField = m.get('shutter');
@@ -62,7 +66,7 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
   const outField = m.require('output', 'where and how frames are written');
   const output = outField ? resolveOutput(ctx, outField) : undefined;
   m.finish();
-  if (!frame || !lights || !output || !flare || seed === undefined || (lensField && !lens) || !mattes || !shutter) return undefined;
+  if (!frame || !lights || !output || !flare || seed === undefined || (lensField && !lens) || (cameraField && !cam) || !mattes || !shutter) return undefined;
   // lights name existing mattes, and have a depth where a depth matte can cover them
   const names = new Set(mattes.map((x) => x.name));
   let ok = true;
@@ -77,8 +81,13 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
         lm.get('occluded_by')!.error(`no matte named "${n}" (mattes: ${[...names].join(', ') || 'none'})`);
       }
     }
+    if (l.world && !cam) {
+      ok = false;
+      lf.error(`the light "${l.name}" is placed in the world; the shot needs a camera to see it through (camera: {scene: FILE} or camera keys)`);
+    }
+    // a light in the world has its depth from the camera (unless the shot gives one)
     const needsDepth = mattes.some((x) => x.kind === 'depth' && l.occludedBy.includes(x.name));
-    if (needsDepth && !l.depth) {
+    if (needsDepth && !l.depth && !l.world) {
       ok = false;
       lf.error(`missing key "depth" (the light's distance, in the depth matte's units, for the depth matte${mattes.filter((x) => x.kind === 'depth').length > 1 ? 's' : ''})`);
     }
@@ -107,6 +116,7 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
     lights,
     glow: flare.glow,
     ...(lens ? { lens } : {}),
+    ...(cam ? { camera: cam.camera } : {}),
     ghosts: flare.ghosts,
     starburst: flare.starburst,
     veil: flare.veil,

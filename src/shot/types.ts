@@ -7,6 +7,7 @@ import type { LensModel } from '../optics/lens.js';
 import type { FrameRate } from '../timeline/frame-rate.js';
 import type { Key, PathShape } from '../timeline/track.js';
 import type { Vec2 } from '../timeline/path.js';
+import type { ResolvedCamera, WorldPlacement } from '../scene/camera.js';
 
 export type OutputFormat = 'png16' | 'png8' | 'exr';
 export type Transfer = 'srgb' | 'linear';
@@ -64,10 +65,13 @@ export interface ShutterSettings {
 export interface ResolvedLight {
   name: string;
   path: PathShape;
-  /** position keys in pixels */
+  /** position keys in pixels (empty for a light placed in the world) */
   position: Key<Vec2>[];
+  /** a light placed in the 3-D world (a point, a direction, or a node of the camera's scene), projected through the shot's camera */
+  world?: WorldPlacement;
   intensityUnit: IntensityUnit;
-  /** intensity keys in intensityUnit (stops are interpolated in stops: fades are exponential) */
+  /** intensity keys in intensityUnit (stops are interpolated in stops: fades are exponential); for a
+   * light of the scene with a KHR_lights_punctual light, a trim on top of the scene's own level */
   intensity: Key<number>[];
   /** linear Rec.709 RGB with unit luminance */
   colour: [number, number, number];
@@ -187,6 +191,8 @@ export interface ResolvedShot extends LightFlare {
   lights: ResolvedLight[];
   /** absent: the shot names no lens, and no ghosts are rendered */
   lens?: ResolvedLens;
+  /** the camera lights placed in the world are seen through (absent: every light is placed in pixels) */
+  camera?: ResolvedCamera;
   mattes: ResolvedMatte[];
   shutter: ShutterSettings;
   output: ResolvedOutput;

@@ -6,13 +6,13 @@ export type Vec2 = readonly [number, number];
 
 const ALPHA = 0.5;
 
-function knot(a: Vec2, b: Vec2): number {
-  return Math.pow(Math.hypot(b[0] - a[0], b[1] - a[1]), ALPHA);
+function knot(a: readonly number[], b: readonly number[]): number {
+  return Math.pow(Math.hypot(...a.map((v, k) => b[k] - v)), ALPHA);
 }
 
-function mix(a: Vec2, b: Vec2, ta: number, tb: number, t: number): [number, number] {
+function mix(a: readonly number[], b: readonly number[], ta: number, tb: number, t: number): number[] {
   const w = (t - ta) / (tb - ta);
-  return [a[0] + (b[0] - a[0]) * w, a[1] + (b[1] - a[1]) * w];
+  return a.map((v, k) => v + (b[k] - v) * w);
 }
 
 /**
@@ -20,10 +20,16 @@ function mix(a: Vec2, b: Vec2, ta: number, tb: number, t: number): [number, numb
  * shaping the tangents. Missing end neighbours are mirrored (p0 = 2 p1 - p2).
  */
 export function catmullRom(p0: Vec2 | undefined, p1: Vec2, p2: Vec2, p3: Vec2 | undefined, s: number): [number, number] {
-  const a: Vec2 = p0 ?? [2 * p1[0] - p2[0], 2 * p1[1] - p2[1]];
-  const d: Vec2 = p3 ?? [2 * p2[0] - p1[0], 2 * p2[1] - p1[1]];
+  const p = catmullRomN(p0, p1, p2, p3, s);
+  return [p[0], p[1]];
+}
+
+/** catmullRom in any number of dimensions (3-D camera and light paths). */
+export function catmullRomN(p0: readonly number[] | undefined, p1: readonly number[], p2: readonly number[], p3: readonly number[] | undefined, s: number): number[] {
+  const a = p0 ?? p1.map((v, k) => 2 * v - p2[k]);
+  const d = p3 ?? p2.map((v, k) => 2 * v - p1[k]);
   const d12 = knot(p1, p2);
-  if (d12 < 1e-9) return [p1[0], p1[1]];
+  if (d12 < 1e-9) return [...p1];
   // a coincident neighbour would give a zero knot interval: borrow the segment's own
   const d01 = knot(a, p1) || d12;
   const d23 = knot(p2, d) || d12;

@@ -3,7 +3,7 @@
 // the next key.
 
 import { easeAt, type Easing } from './easing.js';
-import { catmullRom, type Vec2 } from './path.js';
+import { catmullRom, catmullRomN, type Vec2 } from './path.js';
 
 export interface Key<V> {
   frame: number;
@@ -50,4 +50,18 @@ export function evalVec2(keys: readonly Key<Vec2>[], t: number, shape: PathShape
   const p2 = keys[i + 1].value;
   if (shape === 'linear') return [p1[0] + (p2[0] - p1[0]) * s, p1[1] + (p2[1] - p1[1]) * s];
   return catmullRom(keys[i - 1]?.value, p1, p2, keys[i + 2]?.value, s);
+}
+
+/** A 3-D (or any-dimensional) position track: linear, or a smooth centripetal Catmull-Rom path. */
+export function evalVec3(keys: readonly Key<readonly number[]>[], t: number, shape: PathShape): [number, number, number] {
+  const loc = locate(keys, t);
+  if ('at' in loc) {
+    const v = keys[loc.at].value;
+    return [v[0], v[1], v[2]];
+  }
+  const { i, s } = loc;
+  const p1 = keys[i].value;
+  const p2 = keys[i + 1].value;
+  const p = shape === 'linear' ? p1.map((v, k) => v + (p2[k] - v) * s) : catmullRomN(keys[i - 1]?.value, p1, p2, keys[i + 2]?.value, s);
+  return [p[0], p[1], p[2]];
 }

@@ -81,22 +81,22 @@ surfaces:
     expect(bad.stderr).toMatch(/my-lens\.yaml:3:60: surfaces\[0\]\.colour: unknown key "colour"; known keys here: stop, radius, gap, glass, semi_diameter, coating\n/);
   });
 
-  it('accepts the lens hood the README documents, and `none`', () => {
+  it('accepts the lens hood the README documents, and `none`', async () => {
     const dir = tempDir();
     const surfaces = 'surfaces: [{ radius: 40, gap: 5, glass: N-BK7, semi_diameter: 12 }, { radius: -200, gap: 4, semi_diameter: 12 }, { stop: true, gap: 2 }, { radius: 100, gap: 3, glass: N-BK7, semi_diameter: 10 }, { radius: -100, gap: 40, semi_diameter: 10 }]';
-    const withHood = loadShot(shot(dir, `lens: { hood: { depth: 80, radius: 45 }, ${surfaces} }`));
+    const withHood = await loadShot(shot(dir, `lens: { hood: { depth: 80, radius: 45 }, ${surfaces} }`));
     expect(withHood.lens!.model.hood).toEqual({ depthMm: 80, radiusMm: 45 });
-    const none = loadShot(shot(dir, `lens: { hood: none, ${surfaces} }`));
+    const none = await loadShot(shot(dir, `lens: { hood: none, ${surfaces} }`));
     expect(none.lens!.model.hood).toEqual({ depthMm: 0, radiusMm: 0 });
   });
 });
 
 describe('memory', () => {
-  it('a 16384x16384 frame with 64 workers asked: fewer workers, said once, within the budget', () => {
+  it('a 16384x16384 frame with 64 workers asked: fewer workers, said once, within the budget', async () => {
     const dir = tempDir();
     const big = path.join(dir, 'big.yaml');
     writeFileSync(big, 'version: 1\nframe: { width: 16384, height: 16384, rate: 24, first: 1, last: 1 }\nlights: [{ name: sun, position: [900, 500], intensity: 10 }]\noutput: { path: out/f.####.png }\n');
-    const s = loadShot(big);
+    const s = await loadShot(big);
     // a float RGBA frame alone is 16384^2 x 16 bytes = 4 GiB (computed)
     expect(workerBytes(s)).toBeGreaterThan(4 * GiB);
     const plan = planWorkers(s, 64, 24 * GiB);
@@ -110,7 +110,7 @@ describe('memory', () => {
   it('render lowers --jobs to what fits --max-memory and says so once; refuses when one worker does not fit (exit 7)', async () => {
     const dir = tempDir();
     const f = shot(dir, 'flare: { glow: { enabled: false } }');
-    const per = workerBytes(loadShot(f));
+    const per = workerBytes(await loadShot(f));
     const budget = Math.round((160 * 2 ** 20 + 2.5 * per) / 2 ** 20);
     const r = await cli(['render', f, '--jobs', '8', '--max-memory', `${budget}M`]);
     expect(r.code).toBe(0);

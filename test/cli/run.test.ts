@@ -207,14 +207,14 @@ describe('straylight visibility', () => {
     const r = await cli(['visibility', f, '--plot', plot]);
     expect(r.code).toBe(0);
     const rows = r.stdout.trim().split('\n');
-    expect(rows[0]).toBe('frame,light,x,y,visibility,effective_intensity');
+    expect(rows[0]).toBe('frame,light,x,y,visibility,effective_intensity,depth');
     const vis = rows.slice(1).map((l) => Number(l.split(',')[4]));
     // an edge through the centre hides half the disk (within the 128-point pattern's 0.02)
     expect(vis[0]).toBe(1);
     expect(vis[1]).toBeCloseTo(0.5, 2);
     expect(vis[2]).toBe(1);
     const [frame, light, x, y, , eff] = rows[2].split(',');
-    expect([frame, light, x, y]).toEqual(['2', 'sun', '32.00', '24.00']);
+    expect([frame, light, x, y]).toEqual(['2', 'sun', '32.000', '24.000']);
     expect(Number(eff)).toBeCloseTo(vis[1] * 1, 4); // intensity 0 stops: gain 1
     expect(decode(readFileSync(plot)).width).toBe(1200);
   });

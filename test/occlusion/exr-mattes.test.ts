@@ -54,54 +54,54 @@ ${mattes}
 output: { path: "f.####.png" }
 `;
 
-function load(dir: string, text: string) {
+async function load(dir: string, text: string) {
   writeFileSync(path.join(dir, 'shot.yaml'), text);
-  return loadShot(path.join(dir, 'shot.yaml'));
+  return await loadShot(path.join(dir, 'shot.yaml'));
 }
 
 // a diagonal edge through the light's disk: covered to the right of x = 24 + y / 4
 const covered = (x: number, y: number) => (x + 0.5 > 24 + y / 4 ? 1 : 0);
 
 describe('mattes from OpenEXR sequences (written by oiiotool)', () => {
-  it('a float Z depth matte, scene units as stored: covers where the scene is nearer than the light', () => {
+  it('a float Z depth matte, scene units as stored: covers where the scene is nearer than the light', async () => {
     const dir = tempDir();
     exrFrame(dir, 'm/z.0001.exr', (x, y) => [covered(x, y) ? 20 : 1e9, 0, 0], ['--ch', 'Z=R', '-d', 'float', '--compression', 'zip']);
     pngFrame(dir, 'p/fg.0001.png', covered);
-    const ref = load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png }'));
+    const ref = await load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png }'));
     const want = lightVisibility(ref, ref.lights[0], 1);
     expect(want).toBeGreaterThan(0.2);
     expect(want).toBeLessThan(0.8);
-    const nearLight = load(dir, shotText('  - { name: z, kind: depth, path: m/z.####.exr, tolerance: 0.5 }', ', depth: 100'));
+    const nearLight = await load(dir, shotText('  - { name: z, kind: depth, path: m/z.####.exr, tolerance: 0.5 }', ', depth: 100'));
     expect(lightVisibility(nearLight, nearLight.lights[0], 1)).toBeCloseTo(want, 6);
-    const inFront = load(dir, shotText('  - { name: z, kind: depth, path: m/z.####.exr, tolerance: 0.5 }', ', depth: 10'));
+    const inFront = await load(dir, shotText('  - { name: z, kind: depth, path: m/z.####.exr, tolerance: 0.5 }', ', depth: 10'));
     expect(lightVisibility(inFront, inFront.lights[0], 1)).toBe(1);
   });
 
   for (const compression of ['piz', 'rle', 'zips']) {
-    it(`a half alpha (A-only) matte with ${compression} compression matches the same matte as PNG`, () => {
+    it(`a half alpha (A-only) matte with ${compression} compression matches the same matte as PNG`, async () => {
       const dir = tempDir();
       exrFrame(dir, 'm/a.0001.exr', (x, y) => [covered(x, y), 0, 0], ['--ch', 'A=R', '-d', 'half', '--compression', compression]);
       pngFrame(dir, 'p/fg.0001.png', covered);
-      const ref = load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png }'));
-      const shot = load(dir, shotText('  - { name: a, kind: alpha, path: m/a.####.exr }'));
+      const ref = await load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png }'));
+      const shot = await load(dir, shotText('  - { name: a, kind: alpha, path: m/a.####.exr }'));
       expect(lightVisibility(shot, shot.lights[0], 1)).toBeCloseTo(lightVisibility(ref, ref.lights[0], 1), 6);
     });
   }
 
-  it('a named channel (depth.Z beside RGBA) is read when asked for', () => {
+  it('a named channel (depth.Z beside RGBA) is read when asked for', async () => {
     const dir = tempDir();
     exrFrame(dir, 'm/beauty.0001.exr', (x, y) => [0.3, 0.3, covered(x, y) ? 20 : 1e9], ['--ch', 'R,G,depth.Z=B', '-d', 'half', '-d', 'depth.Z=float', '--compression', 'piz']);
     pngFrame(dir, 'p/fg.0001.png', covered);
-    const ref = load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png }'));
-    const shot = load(dir, shotText('  - { name: z, kind: depth, path: m/beauty.####.exr, channel: depth.Z, tolerance: 0.5 }', ', depth: 100'));
+    const ref = await load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png }'));
+    const shot = await load(dir, shotText('  - { name: z, kind: depth, path: m/beauty.####.exr, channel: depth.Z, tolerance: 0.5 }', ', depth: 100'));
     expect(lightVisibility(shot, shot.lights[0], 1)).toBeCloseTo(lightVisibility(ref, ref.lights[0], 1), 6);
   });
 
-  it('a missing channel is a located error that lists the channels there are', () => {
+  it('a missing channel is a located error that lists the channels there are', async () => {
     const dir = tempDir();
     exrFrame(dir, 'm/rgb.0001.exr', () => [1, 1, 1], ['-d', 'half']);
     try {
-      load(dir, shotText('  - { name: z, kind: depth, path: m/rgb.####.exr }', ', depth: 100'));
+      await load(dir, shotText('  - { name: z, kind: depth, path: m/rgb.####.exr }', ', depth: 100'));
       expect.unreachable();
     } catch (e) {
       expect(e).toBeInstanceOf(ShotError);
@@ -109,9 +109,9 @@ describe('mattes from OpenEXR sequences (written by oiiotool)', () => {
     }
   });
 
-  it('a PNG matte refuses an EXR channel name, at the field', () => {
+  it('a PNG matte refuses an EXR channel name, at the field', async () => {
     const dir = tempDir();
     pngFrame(dir, 'p/fg.0001.png', covered);
-    expect(() => load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png, channel: Z }'))).toThrow(/shot\.yaml:6:60: mattes\[0\]\.channel: expected one of r, g, b, a/);
+    await expect(load(dir, shotText('  - { name: fg, kind: alpha, path: p/fg.####.png, channel: Z }'))).rejects.toThrow(/shot\.yaml:6:60: mattes\[0\]\.channel: expected one of r, g, b, a/);
   });
 });

@@ -26,14 +26,14 @@ ${shutter}
 output: { path: "f.####.png" }
 `;
 
-function shotFrom(text: string, files: Record<string, FloatImage> = {}) {
+async function shotFrom(text: string, files: Record<string, FloatImage> = {}) {
   const dir = tempDir();
   for (const [name, img] of Object.entries(files)) {
     mkdirSync(path.dirname(path.join(dir, name)), { recursive: true });
     writeFileSync(path.join(dir, name), encodePng(img, { bitDepth: 16, transfer: 'linear', alpha: 'none' }));
   }
   writeFileSync(path.join(dir, 'shot.yaml'), text);
-  return loadShot(path.join(dir, 'shot.yaml'));
+  return await loadShot(path.join(dir, 'shot.yaml'));
 }
 
 /** Lit columns of the middle row. */
@@ -50,11 +50,11 @@ function extent(img: FloatImage): number {
 }
 
 describe('shutter', () => {
-  it('is open 1/48 s at 180 degrees and 24 fps (computed)', () => {
+  it('is open 1/48 s at 180 degrees and 24 fps (computed)', async () => {
     expect(exposureSeconds({ angleDeg: 180 }, { num: 24, den: 1 })).toBeCloseTo(1 / 48, 12);
     expect(exposureSeconds({ angleDeg: 360 }, { num: 24000, den: 1001 })).toBeCloseTo(1001 / 24000, 12);
   });
-  it('samples stratified times across the open interval, centred on the frame by default, the same every time', () => {
+  it('samples stratified times across the open interval, centred on the frame by default, the same every time', async () => {
     const t = shutterTimes({ angleDeg: 180, samples: 8, phaseDeg: -90 }, 10, 7);
     expect(t).toHaveLength(8);
     t.forEach((v, i) => {
@@ -63,19 +63,19 @@ describe('shutter', () => {
     });
     expect(shutterTimes({ angleDeg: 180, samples: 8, phaseDeg: -90 }, 10, 7)).toEqual(t);
   });
-  it('a point moving 48 px a frame leaves a 24 px streak at 180 degrees', () => {
-    const shot = shotFrom(moving('shutter: { angle: 180, samples: 96 }'));
+  it('a point moving 48 px a frame leaves a 24 px streak at 180 degrees', async () => {
+    const shot = await shotFrom(moving('shutter: { angle: 180, samples: 96 }'));
     // the dot is 1 px across: the streak covers its 24 px path plus the dot
     expect(extent(renderFrame(shot, 2))).toBeGreaterThanOrEqual(24);
     expect(extent(renderFrame(shot, 2))).toBeLessThanOrEqual(26);
   });
-  it('0 degrees gives no blur', () => {
-    const shot = shotFrom(moving('shutter: { angle: 0, samples: 16 }'));
+  it('0 degrees gives no blur', async () => {
+    const shot = await shotFrom(moving('shutter: { angle: 0, samples: 16 }'));
     expect(extent(renderFrame(shot, 2))).toBeLessThanOrEqual(2);
   });
-  it('blur keeps the energy: the streak holds what the still dot does', () => {
-    const still = renderFrame(shotFrom(moving('shutter: { angle: 0 }')), 2).channelSums()[0];
-    const blurred = renderFrame(shotFrom(moving('shutter: { angle: 180, samples: 32 }')), 2).channelSums()[0];
+  it('blur keeps the energy: the streak holds what the still dot does', async () => {
+    const still = renderFrame(await shotFrom(moving('shutter: { angle: 0 }')), 2).channelSums()[0];
+    const blurred = renderFrame(await shotFrom(moving('shutter: { angle: 180, samples: 32 }')), 2).channelSums()[0];
     expect(blurred / still).toBeCloseTo(1, 3);
   });
 });
@@ -101,59 +101,59 @@ output: { path: "f.####.png" }
 `;
 
 describe('mattes from PNG sequences', () => {
-  it('an alpha matte covers the light; invert flips it; the offset picks the matte frame', () => {
+  it('an alpha matte covers the light; invert flips it; the offset picks the matte frame', async () => {
     // frames 1-3 clear, 4-6 covered
     const files = sequence('m/fg', [1, 2, 3, 4, 5, 6], 64, 32, (f) => (f >= 4 ? 1 : 0));
-    const shot = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
+    const shot = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
     expect([2, 5].map((f) => lightVisibility(shot, shot.lights[0], f))).toEqual([1, 0]);
-    const inverted = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, invert: true }'), files);
+    const inverted = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, invert: true }'), files);
     expect(lightVisibility(inverted, inverted.lights[0], 2)).toBe(0);
-    const shifted = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, offset: 2 }'), files);
+    const shifted = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, offset: 2 }'), files);
     expect(lightVisibility(shifted, shifted.lights[0], 2)).toBe(0);
   });
 
-  it('outside the matte sequence: hold its first and last frames, or clear', () => {
+  it('outside the matte sequence: hold its first and last frames, or clear', async () => {
     const files = sequence('m/fg', [3, 4], 64, 32, () => 1);
-    const hold = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
+    const hold = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
     expect([1, 6].map((f) => lightVisibility(hold, hold.lights[0], f))).toEqual([0, 0]);
-    const clear = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, before: clear, after: clear }'), files);
+    const clear = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, before: clear, after: clear }'), files);
     expect([1, 3, 6].map((f) => lightVisibility(clear, clear.lights[0], f))).toEqual([1, 0, 1]);
   });
 
-  it('a normalised depth matte covers only where the scene is nearer than the light', () => {
+  it('a normalised depth matte covers only where the scene is nearer than the light', async () => {
     // stored 0.1 -> depth 10 + 0.1 x 990 = 109; the light at 50 is in front, at 200 behind
     const files = sequence('m/z', [1], 64, 32, () => 0.1);
     const m = '  - { name: z, kind: depth, path: m/z.####.png, encoding: normalised, near: 10, far: 1000, tolerance: 1 }';
-    const front = shotFrom(lit(m, ', depth: 50'), files);
+    const front = await shotFrom(lit(m, ', depth: 50'), files);
     expect(lightVisibility(front, front.lights[0], 1)).toBe(1);
-    const behind = shotFrom(lit(m, ', depth: 200'), files);
+    const behind = await shotFrom(lit(m, ', depth: 200'), files);
     expect(lightVisibility(behind, behind.lights[0], 1)).toBe(0);
-    const inverted = shotFrom(lit(m.replace('normalised', 'inverted'), ', depth: 200'), files);
+    const inverted = await shotFrom(lit(m.replace('normalised', 'inverted'), ', depth: 200'), files);
     expect(lightVisibility(inverted, inverted.lights[0], 1)).toBe(1); // stored 0.1 -> 1000 - 99 = 901
   });
 
-  it('a matte of another size is a clear error at its path, unless stretched', () => {
+  it('a matte of another size is a clear error at its path, unless stretched', async () => {
     const files = sequence('m/fg', [1], 32, 16, (f, x) => (x >= 16 ? 1 : 0));
     try {
-      shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
+      await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
       expect.unreachable();
     } catch (e) {
       expect(e).toBeInstanceOf(ShotError);
       expect((e as ShotError).message).toMatch(/shot\.yaml:6:36: mattes\[0\]\.path: the matte is 32x16 px, the frame 64x32; give resize: stretch to stretch it over the frame$/);
     }
-    const stretched = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, resize: stretch }'), files);
+    const stretched = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png, resize: stretch }'), files);
     expect(lightVisibility(stretched, stretched.lights[0], 1)).toBeCloseTo(0.5, 1);
   });
 
-  it('a light that needs a depth gets a located error without one', () => {
+  it('a light that needs a depth gets a located error without one', async () => {
     const files = sequence('m/z', [1], 64, 32, () => 0.1);
-    expect(() => shotFrom(lit('  - { name: z, kind: depth, path: m/z.####.png, near: 1, far: 2 }'), files)).toThrow(/lights\[0\]: missing key "depth"/);
+    await expect(shotFrom(lit('  - { name: z, kind: depth, path: m/z.####.png, near: 1, far: 2 }'), files)).rejects.toThrow(/lights\[0\]: missing key "depth"/);
   });
 
-  it('the covered part of the disk is not drawn; glow scales with what is seen', () => {
+  it('the covered part of the disk is not drawn; glow scales with what is seen', async () => {
     // the right half of the frame is covered
     const files = sequence('m/fg', [1], 64, 32, (f, x) => (x >= 32 ? 1 : 0));
-    const shot = shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
+    const shot = await shotFrom(lit('  - { name: fg, kind: alpha, path: m/fg.####.png }'), files);
     const img = renderFrame(shot, 1);
     expect(img.data[(16 * 64 + 36) * 4]).toBeLessThan(0.05); // inside the disk, covered: only glow
     expect(img.data[(16 * 64 + 28) * 4]).toBeGreaterThan(0.9); // inside the disk, clear

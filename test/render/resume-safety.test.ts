@@ -65,13 +65,13 @@ describe('resume and output safety', () => {
   it('keeps the hash when the shot file is commented, re-indented, copied or renamed', async () => {
     const dir = tempDir();
     const file = shotWithMatte(dir);
-    const hash = shotHash(loadShot(file));
+    const hash = shotHash(await loadShot(file));
     const text = readFileSync(file, 'utf8');
     const commented = `# a note added on top\n${text.replace('mattes:', '# the foreground\nmattes:')}`;
     writeFileSync(path.join(dir, 'commented.yaml'), commented);
-    expect(shotHash(loadShot(path.join(dir, 'commented.yaml')))).toBe(hash);
+    expect(shotHash(await loadShot(path.join(dir, 'commented.yaml')))).toBe(hash);
     writeFileSync(path.join(dir, 'reindented.yaml'), text.replace('  - name: lamp\n    position', '  -   name: lamp\n      position').replace('\n    intensity: 4', '\n      intensity: 4'));
-    expect(shotHash(loadShot(path.join(dir, 'reindented.yaml')))).toBe(hash);
+    expect(shotHash(await loadShot(path.join(dir, 'reindented.yaml')))).toBe(hash);
     // a copy in another folder, with the same matte files (copied with their times)
     const other = tempDir();
     mkdirSync(path.join(other, 'm'));
@@ -82,10 +82,10 @@ describe('resume and output safety', () => {
       utimesSync(path.join(other, 'm', n), t, t);
     }
     copyFileSync(file, path.join(other, 'renamed.yaml'));
-    expect(shotHash(loadShot(path.join(other, 'renamed.yaml')))).toBe(shotHash(loadShot(file)));
+    expect(shotHash(await loadShot(path.join(other, 'renamed.yaml')))).toBe(shotHash(await loadShot(file)));
     // and a real change does change it
     writeFileSync(path.join(dir, 'changed.yaml'), text.replace('intensity: 4', 'intensity: 5'));
-    expect(shotHash(loadShot(path.join(dir, 'changed.yaml')))).not.toBe(hash);
+    expect(shotHash(await loadShot(path.join(dir, 'changed.yaml')))).not.toBe(hash);
   });
 
   it('after a harmless edit a render keeps every frame; after a real change old records stay until re-rendered', async () => {
@@ -101,7 +101,7 @@ describe('resume and output safety', () => {
     expect((await cli(['render', file, '--jobs', '1', '--quiet', '--frames', '1-3'])).code).toBe(0);
     const m = manifestOf(dir);
     expect(Object.keys(m.frames)).toHaveLength(24);
-    const v = verifySequence(path.join(dir, 'out', 'f.####.png'), { first: 1, last: 24, hash: shotHash(loadShot(file)) });
+    const v = verifySequence(path.join(dir, 'out', 'f.####.png'), { first: 1, last: 24, hash: shotHash(await loadShot(file)) });
     expect(v.intact).toBe(3);
     expect(v.missing).toHaveLength(21);
     expect(v.hashes).toHaveLength(2);

@@ -87,13 +87,13 @@ describe('shot validation', () => {
       'bad.yaml:10:15: lights[0].position: expected a constant position [x, y] or a list of keys {frame, x, y, ease}, found a list of 3 values',
     ]],
     ['no position and no track', shotWith('    position: [32, 24]\n', ''), [
-      'bad.yaml:9:5: lights[0]: missing key "position" (pixel position keys) or "track" (a frame,x,y CSV file)',
+      'bad.yaml:9:5: lights[0]: missing key "position" (pixel position keys), "track" (a frame,x,y CSV file), or a place in the world: "position_3d", "direction" or "from_scene"',
     ]],
     ['a misspelt intensity', shotWith('intensity: 0', 'intensty: 0'), [
       'bad.yaml:11:5: lights[0].intensty: unknown key "intensty" (did you mean "intensity"?)',
     ]],
     ['both position and track', shotWith('position: [32, 24]', 'position: [32, 24]\n    track: with-intensity.csv'), [
-      'bad.yaml:11:12: lights[0].track: a light takes either "position" keys or a "track" file, not both',
+      'bad.yaml:11:12: lights[0].track: a light is placed by one of position, track, position_3d, direction or from_scene; found position and track',
     ]],
     ['a missing track file', shotWith('position: [32, 24]', 'track: nowhere.csv'), [
       expect.stringMatching(/^bad\.yaml:10:12: lights\[0\]\.track: cannot read track file \/.*\/nowhere\.csv: no such file$/) as unknown as string,

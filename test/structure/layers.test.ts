@@ -20,6 +20,7 @@ const LAYER: Record<string, number> = {
   raster: 1,
   safety: 2,
   optics: 2,
+  scene: 2,
   plot: 3,
   shot: 3,
   occlusion: 3,

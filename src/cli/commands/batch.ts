@@ -49,7 +49,7 @@ export function registerBatch(program: Command, { io, setExit }: CommandContext)
         const entry: BatchShot = { shot: file, status: 'ok', frames: 0, written: 0, skipped: 0, failed: [], seconds: 0, flashes: [], warnings: [] };
         report.shots.push(entry);
         try {
-          const shot = loadShot(file);
+          const shot = await loadShot(file);
           entry.output = shot.output.template;
           entry.frames = shot.frame.last - shot.frame.first + 1;
           const tc = (n: number) => framesToTimecode(shot.frame.timecodeStartFrames + n - shot.frame.first, shot.frame.rate, shot.frame.dropFrame);

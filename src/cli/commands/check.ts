@@ -21,14 +21,14 @@ export function registerCheck(program: Command, { io }: CommandContext): void {
     .argument('<file>', 'shot file (YAML), or a lens file')
     .addOption(new Option('--jobs <n>', 'the worker count to plan memory for (default: the available parallelism)').argParser(positiveInt('--jobs')))
     .addOption(new Option('--max-memory <size>', 'the memory budget to plan for, e.g. 8G (default: 80% of what is free)').argParser(memorySize('--max-memory')))
-    .action((file: string, opts: { jobs?: number; maxMemory?: number }) => {
+    .action(async (file: string, opts: { jobs?: number; maxMemory?: number }) => {
       if (looksLikeLensFile(file)) {
         const { lens } = loadLens(file);
         const report = lensReport(lens, prepareLens(lens, 'medium', 0));
         io.stdout(`${file}: a lens file (not a shot); it is valid\n${formatLensReport(report, 'file', 5)}`);
         return;
       }
-      const shot = loadShot(file);
+      const shot = await loadShot(file);
       io.stdout(shotSummary(shot, file, { cwd: process.cwd(), jobs: opts.jobs ?? availableParallelism(), budgetBytes: opts.maxMemory ?? availableBytes() }));
     });
 }

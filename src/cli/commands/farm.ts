@@ -23,8 +23,8 @@ export function registerFarm(program: Command, { io }: CommandContext): void {
     .option('--dir <folder>', 'where the scripts and logs go (default: slurm/ beside the frames)')
     .option('--partition <name>', 'Slurm partition')
     .option('--submit', 'submit with sbatch now (the verify job waits for the array)')
-    .action((shotFile: string, opts: { tasks: number; jobsPerTask: number; dir?: string; partition?: string; submit?: boolean }) => {
-      const shot = loadShot(shotFile);
+    .action(async (shotFile: string, opts: { tasks: number; jobsPerTask: number; dir?: string; partition?: string; submit?: boolean }) => {
+      const shot = await loadShot(shotFile);
       const folder = path.resolve(opts.dir ?? path.join(path.dirname(shot.output.template), 'slurm'));
       const bin = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..', '..', 'bin', 'straylight.js');
       const scripts = slurmScripts({ shotFile: path.resolve(shotFile), tasks: opts.tasks, jobsPerTask: opts.jobsPerTask, folder, partition: opts.partition, node: process.execPath, bin });

@@ -23,13 +23,13 @@ export function registerFlashes(program: Command, { io, setExit }: CommandContex
     .option('--rate <fps>', 'frame rate of a sequence given by template (default 24)')
     .option('--json', 'print the report as JSON')
     .option('--plot <file>', 'draw luminance and flashes a second against the limits, flagged spans shaded: .svg or .png (over the plate when --plate is given)')
-    .action((arg: string, opts: { plate?: string; rate?: string; json?: boolean; plot?: string }) => {
+    .action(async (arg: string, opts: { plate?: string; rate?: string; json?: boolean; plot?: string }) => {
       checkPlateTemplate(opts.plate, '--plate');
       if (opts.plot) {
         requireExtension('--plot', opts.plot, ['.svg', '.png']);
         checkWritableFolder(path.dirname(path.resolve(opts.plot)));
       }
-      const src = openSource(arg, opts.rate);
+      const src = await openSource(arg, opts.rate);
       let black: FlashAnalyser | undefined;
       let plated: FlashAnalyser | undefined;
       for (const f of src.frames) {

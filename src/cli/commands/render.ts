@@ -54,7 +54,7 @@ export function registerRender(program: Command, { io, setExit }: CommandContext
       checkPlateTemplate(opts.over);
       if (opts.burnIn && !opts.movie && !opts.over) throw new UsageError('--burn-in marks review frames: give --movie or --over too (the pass itself is never marked)');
       if ((opts.movie || opts.over) && opts.shard) throw new UsageError(`${opts.movie ? '--movie' : '--over'} needs the whole sequence: make it after the shards, with a render of the whole shot (finished frames are kept)`);
-      const loaded = withOutputOptions(loadShot(shotFile), opts);
+      const loaded = withOutputOptions(await loadShot(shotFile), opts);
       // look-dev overrides never write into the full render's folder (nor touch its manifest)
       const overridden = opts.quality !== undefined || opts.scale !== undefined;
       if (overridden) {

@@ -22,15 +22,15 @@ export function registerSheet(program: Command, { io }: CommandContext): void {
     .addOption(new Option('--tile-width <px>', 'tile width in pixels').default(320).argParser(positiveInt('--tile-width')))
     .option('--over <plate>', 'show the pass added over this background plate sequence (linear light)')
     .option('--rate <fps>', 'frame rate of a sequence given by template (default 24)')
-    .action((arg: string, opts: { out: string; every?: number; columns: number; tileWidth: number; over?: string; rate?: string }) => {
+    .action(async (arg: string, opts: { out: string; every?: number; columns: number; tileWidth: number; over?: string; rate?: string }) => {
       requireExtension('--out', opts.out, ['.png', '.svg'], 'the sheet');
       checkPlateTemplate(opts.over);
       checkWritableFolder(path.dirname(path.resolve(opts.out)));
-      const src = openSource(arg, opts.rate);
+      const src = await openSource(arg, opts.rate);
       const every = opts.every ?? Math.max(1, Math.ceil(src.frames.length / 24));
       const { image, frames, labels, tileHeight } = contactSheet(src, { every, columns: opts.columns, tileWidth: opts.tileWidth, over: opts.over });
       // a shot's sheet names its lens too
-      const shot = /\.ya?ml$/i.test(arg) ? loadShot(arg) : undefined;
+      const shot = /\.ya?ml$/i.test(arg) ? await loadShot(arg) : undefined;
       const lens = shot?.lens ? `; lens ${shot.lens.source}, f/${shot.lens.fNumber[0].value}${shot.lens.fNumber.length > 1 ? ' (keyed)' : ''}` : '';
       const title = `${path.basename(arg)}, frames ${frames[0]}-${frames[frames.length - 1]} every ${every}${opts.over ? ', over the plate' : ''}${lens}`;
       const picture = `data:image/png;base64,${encodePng(image, { bitDepth: 8, transfer: 'srgb', alpha: 'none' }).toString('base64')}`;

@@ -21,9 +21,9 @@ export function registerStill(program: Command, { io }: CommandContext): void {
     .requiredOption('--out <file>', 'output file: .png or .exr')
     .addOption(new Option('--quality <q>', "ghost quality, instead of the shot's (draft is the quickest look)").choices([...QUALITIES]))
     .addOption(new Option('--scale <s>', 'render at this fraction of the frame size (e.g. 0.5), positions and sizes scaled with it').argParser(fraction('--scale')))
-    .action((shotFile: string, opts: { frame: number; out: string; quality?: GhostQuality; scale?: number }) => {
+    .action(async (shotFile: string, opts: { frame: number; out: string; quality?: GhostQuality; scale?: number }) => {
       requireExtension('--out', opts.out, ['.png', '.exr']);
-      const full = loadShot(shotFile);
+      const full = await loadShot(shotFile);
       const shot = scaleShot(opts.quality ? withGhostQuality(full, opts.quality) : full, opts.scale ?? 1);
       parseFrameRange(String(opts.frame), shot, '--frame');
       const ext = path.extname(opts.out).toLowerCase();

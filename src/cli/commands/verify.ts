@@ -16,14 +16,14 @@ export function registerVerify(program: Command, { io, setExit }: CommandContext
     .description('check that a rendered sequence is complete and intact against its manifest')
     .argument('<shot-or-folder>', 'a shot file, or a folder holding rendered sequences and their manifests')
     .option('--json', 'print the report as JSON')
-    .action((arg: string, opts: { json?: boolean }) => {
+    .action(async (arg: string, opts: { json?: boolean }) => {
       let reports: VerifyReport[];
       if (existsSync(arg) && statSync(arg).isDirectory()) {
         const templates = sequencesIn(path.resolve(arg));
         if (templates.length === 0) throw new InputError(`${arg}: no sequence manifest in this folder`);
         reports = templates.map((t) => verifySequence(t));
       } else {
-        const shot = loadShot(arg);
+        const shot = await loadShot(arg);
         reports = outputSequences(shot).map((q) => verifySequence(q.shot.output.template, { first: shot.frame.first, last: shot.frame.last, hash: shotHash(q.shot) }));
       }
       io.stdout(opts.json ? `${JSON.stringify(reports, null, 2)}\n` : reports.map(formatVerify).join(''));

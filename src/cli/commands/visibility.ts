@@ -16,14 +16,16 @@ export function registerVisibility(program: Command, { io }: CommandContext): vo
     .command('visibility')
     .description('how much of each light its mattes let through, frame by frame (averaged over the shutter)')
     .argument('<shot>', 'shot file (YAML)')
-    .option('--csv <file>', 'write frame,light,x,y,visibility,effective_intensity rows to a CSV file')
+    .option('--csv <file>', 'write frame,light,x,y,visibility,effective_intensity,depth rows to a CSV file')
     .option('--plot <file>', 'draw each light\'s visibility over the frame range: a chart as .svg or .png')
-    .action((shotFile: string, opts: { csv?: string; plot?: string }) => {
+    .action(async (shotFile: string, opts: { csv?: string; plot?: string }) => {
       if (opts.plot) requireExtension('--plot', opts.plot, ['.svg', '.png']);
-      const shot = loadShot(shotFile);
+      const shot = await loadShot(shotFile);
       for (const f of [opts.csv, opts.plot]) if (f) checkWritableFolder(path.dirname(path.resolve(f)));
       const found = visibilityRows(shot);
-      const rows = ['frame,light,x,y,visibility,effective_intensity', ...found.map((r) => `${r.frame},${r.light},${r.xPx.toFixed(2)},${r.yPx.toFixed(2)},${r.visibility.toFixed(4)},${r.effectiveIntensity.toPrecision(6)}`)];
+      // x and y are empty while the light is behind the camera; depth is empty without one
+      const num = (v: number | undefined, d: number) => (v === undefined ? '' : v.toFixed(d));
+      const rows = ['frame,light,x,y,visibility,effective_intensity,depth', ...found.map((r) => `${r.frame},${r.light},${num(r.xPx, 3)},${num(r.yPx, 3)},${r.visibility.toFixed(4)},${r.effectiveIntensity.toPrecision(6)},${r.depth === undefined ? '' : r.depth.toPrecision(7)}`)];
       if (opts.csv) writeOutputFile(path.resolve(opts.csv), Buffer.from(rows.join('\n') + '\n'));
       else io.stdout(rows.join('\n') + '\n');
       if (opts.plot) {

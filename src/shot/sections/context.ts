@@ -2,6 +2,7 @@
 // relative paths), and the reader for the files a shot names. Plus the limits sections check.
 
 import type { Diagnostic } from '../../errors.js';
+import type { SceneData } from '../../scene/types.js';
 
 /** What the resolver may read besides the shot itself (track CSVs); injected so shot/ does no I/O. */
 export interface ShotReader {
@@ -9,6 +10,8 @@ export interface ShotReader {
   /** preset lenses: their names, and the file of one */
   presetNames?(): string[];
   presetPath?(name: string): string;
+  /** a glTF scene named by the shot, read beforehand (reading one is asynchronous; see io/load-shot) */
+  scene?(absolutePath: string): { scene: SceneData } | { error: string } | undefined;
 }
 
 export interface ResolveContext {
@@ -19,6 +22,8 @@ export interface ResolveContext {
   /** the shot's folder as the user named it, for messages about files beside it */
   readonly shownDir: string;
   readonly reader: ShotReader;
+  /** the camera's scene, once the camera section is read (lights pick nodes from it) */
+  scene?: { data: SceneData; shown: string };
 }
 
 /** Largest frame side accepted (px). */

@@ -90,3 +90,25 @@ export function resolveColour(ctx: ResolveContext, f: Field): { rgb: [number, nu
   }
   return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
 }
+
+/** Largest coordinate accepted in a 3-D scene (scene units, metres by glTF's convention). */
+export const MAX_WORLD = 1e9;
+
+/**
+ * A constant [a, b, c] or a list of {frame, <names[0]>, <names[1]>, <names[2]>, ease} keys: 3-D
+ * positions (x, y, z), camera rotations (pan, tilt, roll) and the like.
+ */
+export function vec3Keys(ctx: ResolveContext, f: Field, names: [string, string, string], rule: { min: number; max: number }, what: string): Key<readonly number[]>[] | undefined {
+  const shape = `a constant [${names.join(', ')}] or a list of keys {frame, ${names.join(', ')}, ease}`;
+  const list = f.isSeq() ? f.list()! : undefined;
+  if (list && list.length > 0 && list.every((x) => !x.isMap())) {
+    if (list.length !== 3) return f.error(`expected ${shape}, found a list of ${list.length} values`);
+    const v = f.numbers(3, rule);
+    return v ? [{ frame: 0, value: v, ease: LINEAR }] : undefined;
+  }
+  if (!list) return f.expected(shape);
+  return keyList(ctx, f, list, (m) => {
+    const v = names.map((n) => m.require(n, `${what}: ${n}`)?.number(rule));
+    return v.some((x) => x === undefined) ? undefined : (v as number[]);
+  });
+}
