@@ -34,6 +34,11 @@ describe('the npm package', () => {
     expect(check.stderr).toBe('');
     expect(check.status).toBe(0);
     expect(check.stdout).toMatch(/^light\s+beacon: 2800 K/m);
+    // the second demo reads its camera and lights from the glTF scene shipped beside it
+    const scene = spawnSync(bin, ['check', path.join(installed, 'shots', 'rooftop-crane.yaml')], { cwd: elsewhere, encoding: 'utf8' });
+    expect(scene.stderr).toBe('');
+    expect(scene.status).toBe(0);
+    expect(scene.stdout).toMatch(/^ {2}path\s+warning-lamp: on the frame 48 of 48 frames/m);
     // preset lenses are found beside the installed code, whatever the current folder
     const lens = spawnSync(bin, ['lens', 'double-gauss-50'], { cwd: elsewhere, encoding: 'utf8' });
     expect(lens.status).toBe(0);
