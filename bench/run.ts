@@ -2,7 +2,7 @@
 // Each figure is the median of several runs after a warm-up. Later stages add their rows here.
 
 import { execFileSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -268,6 +268,47 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   const pageMs = time(() => batchHtml(report));
   rows.push(['pictures: visibility chart SVG; as PNG; lens drawing as PNG (target < 200 ms)', `${ms(svgMs)}; ${ms(pngMs)}; ${ms(lensMs)}`]);
   rows.push(['batch report page for 100 shots, charts inlined (target < 2 s)', ms(pageMs)]);
+}
+
+// --- scenes: loading a camera animation of 1,000 keys (glTF binary, read and resolved), and
+// sampling the scene (camera pose, lights projected) per frame against rendering that frame
+{
+  const { Document, NodeIO } = await import('@gltf-transform/core');
+  const { loadShot } = await import('../src/io/load-shot.js');
+  const { frameState } = await import('../src/render/frame-state.js');
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  const doc = new Document();
+  const buffer = doc.createBuffer();
+  const cam = doc.createNode('Cam').setCamera(doc.createCamera('c').setType('perspective').setYFov(0.6).setAspectRatio(16 / 9).setZNear(0.1));
+  doc.createScene('S').addChild(cam);
+  const n = 1000;
+  const times = Float32Array.from({ length: n }, (_, i) => i / 24);
+  const moves = Float32Array.from({ length: 3 * n }, (_, i) => Math.sin(i / 30) * 5);
+  const turns = new Float32Array(4 * n);
+  for (let i = 0; i < n; i++) turns.set([0, Math.sin(i / 400), 0, Math.cos(i / 400)], 4 * i);
+  const input = doc.createAccessor().setType('SCALAR').setArray(times).setBuffer(buffer);
+  const anim = doc.createAnimation('a');
+  for (const [pathName, arr, type] of [['translation', moves, 'VEC3'], ['rotation', turns, 'VEC4']] as const) {
+    const smp = doc.createAnimationSampler().setInput(input).setOutput(doc.createAccessor().setType(type).setArray(arr).setBuffer(buffer)).setInterpolation('LINEAR');
+    anim.addSampler(smp).addChannel(doc.createAnimationChannel().setTargetNode(cam).setTargetPath(pathName).setSampler(smp));
+  }
+  await new NodeIO().write(path.join(dir, 'long.glb'), doc);
+  const shotFile = path.join(dir, 'long.yaml');
+  writeFileSync(shotFile, `version: 1\nframe: { width: 1920, height: 1080, rate: 24, first: 1, last: 1000 }\ncamera: { scene: long.glb }\nlights:\n  - { name: s, position_3d: [0, 0, -50], intensity: 8 }\noutput: { path: "f.####.png" }\n`);
+  const loads: number[] = [];
+  for (let r = 0; r < RUNS + 1; r++) {
+    const start = performance.now();
+    await loadShot(shotFile);
+    loads.push(performance.now() - start);
+  }
+  rows.push(['scene: load a shot whose camera has 1,000 keys (.glb; target < 50 ms)', ms(median(loads.slice(1)))]);
+  const demo = await loadShot(path.join(path.dirname(fileURLToPath(import.meta.url)), '..', '..', 'shots', 'rooftop-crane.yaml'));
+  const sample = time(() => {
+    for (let f = 1; f <= 48; f++) frameState(demo, f);
+  }) / 48;
+  const frameMs = time(() => renderFrame(demo, 28), 3);
+  rows.push(['scene: sampling per frame vs rendering it (rooftop-crane; target < 1%)', `${(sample * 1000).toFixed(1)} us vs ${ms(frameMs)} (${((100 * sample) / frameMs).toFixed(3)}%)`]);
+  rmSync(dir, { recursive: true, force: true });
 }
 
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
