@@ -105,6 +105,8 @@ describe('glTF animation sampling (glTF 2.0 specification, Appendix C)', () => {
     expect(lightState(shot, shot.lights[0], 0).xPx).toBeCloseTo(160 + 0.1 * (50 / 36) * 320, 4);
     // 100 cd at 10 m is 1 lux (KHR_lights_punctual: candela / d^2), white_lux 1: gain 1
     expect(lightState(shot, shot.lights[0], 12).gain).toBeCloseTo(1, 5);
+    // shutter samples fall between frames: at frame 6.5 (0.2708 s) the camera is at x = 0.5417
+    expect(lightState(shot, shot.lights[0], 6.5).xPx).toBeCloseTo(160 + ((1 - 6.5 / 12) / 10) * (50 / 36) * 320, 3);
     // scene_frame_offset 12 moves scene time 0 to frame 12
     const later = await loadShot(shotFile(dir, '{ scene: s.glb, node: Cam, scene_frame_offset: 12 }', '  - { name: l, from_scene: L }'));
     expect(lightState(later, later.lights[0], 24).xPx).toBeCloseTo(160, 6);
@@ -163,6 +165,10 @@ describe('a camera given by keys in the shot', () => {
     const straight = await loadShot(shotFile(dir, '{ position: [0, 0, 0], rotation: [0, 0, 0], focal_length: [{ frame: 1, value: 25 }, { frame: 24, value: 100 }] }', lights));
     expect(lightState(straight, straight.lights[1], 1).xPx).toBeCloseTo(160 + 0.1 * (25 / 36) * 320, 9);
     expect(lightState(straight, straight.lights[1], 24).xPx).toBeCloseTo(160 + 0.1 * (100 / 36) * 320, 9);
+    // a pan keyed from 0 to 10 degrees over frames 1-2 is at 5 degrees halfway (a shutter sample):
+    // panning left moves a point straight ahead to the right by tan(5) x f/sensor x width
+    const panning = await loadShot(shotFile(dir, '{ position: [0, 0, 0], rotation: [{ frame: 1, pan: 0, tilt: 0, roll: 0 }, { frame: 2, pan: 10, tilt: 0, roll: 0 }], focal_length: 50 }', '  - { name: h, position_3d: [0, 0, -1000], intensity: 0 }'));
+    expect(lightState(panning, panning.lights[0], 1.5).xPx).toBeCloseTo(160 + Math.tan((5 * Math.PI) / 180) * (50 / 36) * 320, 6);
     // tilt up 10 degrees: a point on the horizon drops below the centre by tan(10) x f/sensor x width
     const tilted = await loadShot(shotFile(dir, '{ position: [0, 0, 0], rotation: [0, 10, 0], focal_length: 50 }', '  - { name: h, position_3d: [0, 0, -1000], intensity: 0 }'));
     expect(lightState(tilted, tilted.lights[0], 1).yPx).toBeCloseTo(90 + Math.tan((10 * Math.PI) / 180) * (50 / 36) * 320, 6);
