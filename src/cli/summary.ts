@@ -11,10 +11,6 @@ import { framesOnDisk } from '../io/read-frame.js';
 import { cameraFocalMm, lightPaths } from '../render/light-paths.js';
 import { focalLength } from '../optics/paraxial.js';
 
-function lensFocal(shot: ResolvedShot): number {
-  return focalLength(shot.lens!.model);
-}
-
 /** Where and how the machine would run it, for `check`. */
 export interface SummaryContext {
   /** the current folder (the output is said to be outside it and the shot's folder, or not) */
@@ -63,7 +59,7 @@ export function shotSummary(shot: ResolvedShot, shown: string, run?: SummaryCont
       warnings.push(`the scene's camera was made for a ${c.camera.aspectRatio.toFixed(3)}:1 frame and this one is ${display.toFixed(3)}:1; its horizontal field fills the width, so the frame shows ${c.camera.aspectRatio > display ? 'more' : 'less'} above and below than the scene's renders`);
     }
     if (shot.lens) {
-      const lf = lensFocal(shot);
+      const lf = focalLength(shot.lens.model);
       if (Math.abs(lf / fmm - 1) > 0.01) {
         warnings.push(`the camera's field is that of ${fmm.toFixed(1)} mm on ${c.sensorWidthMm} mm, the lens ${shot.lens.source} is ${lf.toFixed(1)} mm on ${shot.lens.model.sensorWidthMm} mm: the camera decides where lights land; the lens draws its ghosts from those places, as for any light placed there`);
       }

@@ -4,7 +4,7 @@
 // not kept. Problems come back as one plain sentence, never the library's own message.
 
 import { statSync } from 'node:fs';
-import { NodeIO, type Accessor, type AnimationSampler, type Node } from '@gltf-transform/core';
+import { NodeIO, type Accessor, type AnimationSampler, type Node, type Root } from '@gltf-transform/core';
 import { KHRLightsPunctual, type Light } from '@gltf-transform/extensions';
 import { whyNotReadable } from '../errors.js';
 import type { SceneCamera, SceneData, SceneLight, SceneNode, SceneSampler, Vec3, Quat } from '../scene/types.js';
@@ -50,7 +50,7 @@ function explain(e: unknown, file: string): string {
   return 'not a glTF 2.0 file, or a damaged one';
 }
 
-function toScene(root: ReturnType<Awaited<ReturnType<NodeIO['read']>>['getRoot']>, animation?: string): SceneResult {
+function toScene(root: Root, animation?: string): SceneResult {
   const list = root.listNodes();
   const index = new Map<Node, number>(list.map((n, i) => [n, i]));
   const nodes: SceneNode[] = list.map((n) => ({

@@ -4,7 +4,7 @@
 
 import { defaultHood, hoodPassFraction, HOOD_CUTOFF } from '../optics/lens.js';
 import { focalLength } from '../optics/paraxial.js';
-import { cameraPose, illuminanceAt, project, sceneSeconds, sub, unit, type CameraPose, type Projection, type WorldPlacement } from '../scene/camera.js';
+import { atInfinity, cameraPose, illuminanceAt, project, sceneSeconds, sub, unit, type CameraPose, type Projection, type WorldPlacement } from '../scene/camera.js';
 import { chainWorld } from '../scene/sample.js';
 import type { Vec3 } from '../scene/types.js';
 import type { ResolvedLight, ResolvedShot } from '../shot/types.js';
@@ -53,7 +53,7 @@ export function lightState(shot: ResolvedShot, light: ResolvedLight, t: number):
     return state(light, x, y, gain, true, 1);
   }
   const { frame } = shot;
-  const pose = cameraPose(shot.camera, t, (frame.widthPx * frame.pixelAspect) / frame.heightPx);
+  const pose = poseAt(shot, t);
   const w = worldAt(light.world, shot, t);
   const p = project(pose, w.at, w.atInfinity, { widthPx: frame.widthPx, pixelAspect: frame.pixelAspect, centre: frame.opticalCentre });
   if (w.light) {
@@ -71,6 +71,17 @@ export function lightState(shot: ResolvedShot, light: ResolvedLight, t: number):
   const s = state(light, p.xPx, p.yPx, gain * field, true, field);
   s.depth = Number.isFinite(p.depth) ? p.depth : DEPTH_AT_INFINITY;
   return s;
+}
+
+/** The last pose worked out: every light of an instant shares it. */
+let lastPose: { shot: ResolvedShot; t: number; pose: CameraPose } | undefined;
+
+function poseAt(shot: ResolvedShot, t: number): CameraPose {
+  if (lastPose?.shot !== shot || lastPose.t !== t) {
+    const { frame } = shot;
+    lastPose = { shot, t, pose: cameraPose(shot.camera!, t, (frame.widthPx * frame.pixelAspect) / frame.heightPx) };
+  }
+  return lastPose.pose;
 }
 
 function state(light: ResolvedLight, x: number, y: number, gain: number, placed: boolean, field: number): LightState {
@@ -94,9 +105,12 @@ export function worldAt(place: WorldPlacement, shot: ResolvedShot, t: number): {
   // a light shines along its node's -Z: the direction towards a directional light is +Z
   const z: Vec3 = unit([m[2], m[6], m[10]]);
   const spotAxis: Vec3 = [-z[0], -z[1], -z[2]];
-  if (place.light?.type === 'directional') return { at: z, atInfinity: true, light: place.light, spotAxis };
+  if (atInfinity(place)) return { at: z, atInfinity: true, light: place.light, spotAxis };
   return { at: [m[3], m[7], m[11]], atInfinity: false, ...(place.light ? { light: place.light } : {}), spotAxis };
 }
+
+/** Each lens's focal length, worked out once. */
+const focal = new WeakMap<object, number>();
 
 /**
  * How much of a light in the world the lens takes in, from its place on the frame: with a lens,
@@ -105,8 +119,6 @@ export function worldAt(place: WorldPlacement, shot: ResolvedShot, t: number): {
  * `hood: none` fades over the last 10 degrees before 90; without a lens, a hood matched to the
  * camera's own frame (full to the frame corner, closed at twice its field).
  */
-const focal = new WeakMap<object, number>();
-
 export function fieldFactor(shot: ResolvedShot, pose: CameraPose, p: Projection): number {
   if (!(p.cosField > 0) || p.xPx === undefined || p.yPx === undefined) return 0;
   const { frame } = shot;

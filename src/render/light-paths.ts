@@ -3,7 +3,7 @@
 // placed in the world, where a wrong camera or frame offset shows at once.
 
 import type { ResolvedShot } from '../shot/types.js';
-import { cameraPose } from '../scene/camera.js';
+import { atInfinity, cameraPose } from '../scene/camera.js';
 import { lightState } from './frame-state.js';
 
 export interface LightPathSummary {
@@ -30,7 +30,7 @@ export function lightPaths(shot: ResolvedShot): LightPathSummary[] {
         out.behindFrames++;
         continue;
       }
-      if (s.depth !== undefined && Number.isFinite(s.depth) && light.world?.kind !== 'direction' && !(light.world?.kind === 'scene' && light.world.light?.type === 'directional')) {
+      if (s.depth !== undefined && light.world && !atInfinity(light.world)) {
         out.depth = out.depth ? [Math.min(out.depth[0], s.depth), Math.max(out.depth[1], s.depth)] : [s.depth, s.depth];
       }
       if (s.xPx >= 0 && s.yPx >= 0 && s.xPx < widthPx && s.yPx < heightPx) {

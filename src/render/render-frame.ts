@@ -130,8 +130,7 @@ export function ghostPathMultipliers(settings: Pick<LightFlare, 'ghosts'>, t: nu
 }
 
 /** Visibility of a light at time t (1 without mattes). */
-export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider = matteProvider(shot)): number {
-  const s = lightState(shot, light, t);
+export function lightVisibility(shot: ResolvedShot, light: ResolvedLight, t: number, mattes: MatteProvider = matteProvider(shot), s: LightState = lightState(shot, light, t)): number {
   if (!s.placed) return 0;
   const lookups = coverageFor(shot, light, t, mattes, s);
   return diskVisibility(s.xPx, s.yPx, s.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect: shot.frame.pixelAspect });
@@ -197,7 +196,7 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (assets.lens && gGhosts > 0) {
         // the ghosts' rays are traced through the hood: they take the light without its field share
         const ghostFlux = s.field === 1 ? flux : (flux.map((c) => c / s.field) as [number, number, number]);
-        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux: ghostFlux },  { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux: ghostFlux }, { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
       }
       if (assets.starburst && gStar > 0) {
         const k = ls.starburst.fraction * gStar;

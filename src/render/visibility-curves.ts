@@ -31,8 +31,9 @@ export function visibilityRows(shot: ResolvedShot): VisibilityRow[] {
       let g = 0;
       let vg = 0;
       for (const t of times) {
-        const vt = lightVisibility(shot, light, t, mattes);
-        const gt = lightState(shot, light, t).gain;
+        const st = lightState(shot, light, t);
+        const vt = lightVisibility(shot, light, t, mattes, st);
+        const gt = st.gain;
         v += vt;
         g += gt;
         vg += vt * gt;

@@ -43,6 +43,11 @@ export type WorldPlacement =
   | { kind: 'direction'; direction: Key<readonly number[]>[] }
   | { kind: 'scene'; chain: NodeChain; light?: SceneLight; nodeName: string };
 
+/** A light at infinity: given by direction, or a directional light of the scene. */
+export function atInfinity(place: WorldPlacement): boolean {
+  return place.kind === 'direction' || (place.kind === 'scene' && place.light?.type === 'directional');
+}
+
 /** The camera at one instant: its position, axes (unit) and the tangent of half its horizontal field. */
 export interface CameraPose {
   origin: Vec3;

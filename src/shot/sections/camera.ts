@@ -5,20 +5,12 @@
 import path from 'node:path';
 import { nodeChain } from '../../scene/sample.js';
 import type { ResolvedCamera } from '../../scene/camera.js';
-import type { NodeChain, SceneCamera, SceneData } from '../../scene/types.js';
+import type { NodeChain, SceneCamera } from '../../scene/types.js';
 import { frameRateValue, type FrameRate } from '../../timeline/frame-rate.js';
 import type { PathShape } from '../../timeline/track.js';
 import type { Field, MapField } from '../source.js';
-import type { ResolveContext } from './context.js';
+import type { ResolveContext, ShotScene } from './context.js';
 import { MAX_WORLD, scalarKeys, vec3Keys } from './keys.js';
-
-/** What the lights section needs from the camera's scene: the scene, and how to name it in messages. */
-export interface ShotScene {
-  data: SceneData;
-  shown: string;
-}
-
-export const CAMERA_KEYS = ['scene', 'node', 'animation', 'scene_frame_offset', 'scene_rate', 'sensor_width', 'white_lux', 'position', 'rotation', 'look_at', 'roll', 'focal_length', 'path'];
 
 export function resolveCamera(ctx: ResolveContext, f: Field, rate: FrameRate | undefined, lensSensorMm: number | undefined): { camera: ResolvedCamera; scene?: ShotScene } | undefined {
   const m = f.map('a camera: {scene: FILE, node: NAME} or keys {position, rotation or look_at, focal_length}');

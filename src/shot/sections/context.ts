@@ -23,7 +23,13 @@ export interface ResolveContext {
   readonly shownDir: string;
   readonly reader: ShotReader;
   /** the camera's scene, once the camera section is read (lights pick nodes from it) */
-  scene?: { data: SceneData; shown: string };
+  scene?: ShotScene;
+}
+
+/** What the lights section needs from the camera's scene: the scene, and how to name it in messages. */
+export interface ShotScene {
+  data: SceneData;
+  shown: string;
 }
 
 /** Largest frame side accepted (px). */

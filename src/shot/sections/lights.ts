@@ -70,11 +70,8 @@ export function resolveLight(ctx: ResolveContext, f: Field): ResolvedLight | und
     const keys = directionKeys(ctx, dirField);
     if (keys) world = { kind: 'direction', direction: keys };
   } else if (sceneField) {
-    const picked = sceneNode(ctx, sceneField);
-    if (picked) {
-      world = picked.world;
-      sceneLight = picked.light;
-    }
+    world = sceneNode(ctx, sceneField);
+    if (world?.kind === 'scene') sceneLight = world.light;
   } else {
     m.reportMissing('position', '"position" (pixel position keys), "track" (a frame,x,y CSV file), or a place in the world: "position_3d", "direction" or "from_scene"');
   }
@@ -183,7 +180,7 @@ function directionKeys(ctx: ResolveContext, f: Field): Key<readonly number[]>[] 
 }
 
 /** A node of the camera's scene: its place, and its KHR_lights_punctual light if it carries one. */
-function sceneNode(ctx: ResolveContext, f: Field): { world: WorldPlacement; light?: SceneLight } | undefined {
+function sceneNode(ctx: ResolveContext, f: Field): WorldPlacement | undefined {
   const name = f.string("the name of a node in the camera's scene");
   if (name === undefined) return undefined;
   const scene = ctx.scene;
@@ -193,7 +190,7 @@ function sceneNode(ctx: ResolveContext, f: Field): { world: WorldPlacement; ligh
   if (named.length === 0) return f.error(`no node named "${name}" in ${scene.shown} (lights: ${lit.join(', ') || 'none'})`);
   if (named.length > 1) return f.error(`${named.length} nodes are named "${name}" in ${scene.shown}; rename one`);
   const light = scene.data.lights[named[0]];
-  return { world: { kind: 'scene', chain: nodeChain(scene.data, named[0]), nodeName: name, ...(light ? { light } : {}) }, ...(light ? { light } : {}) };
+  return { kind: 'scene', chain: nodeChain(scene.data, named[0]), nodeName: name, ...(light ? { light } : {}) };
 }
 
 function sceneColour(light: SceneLight, f: Field): { rgb: [number, number, number]; spec: ResolvedLight['colourSpec'] } | undefined {
