@@ -27,22 +27,20 @@ export function visibilityRows(shot: ResolvedShot): VisibilityRow[] {
   for (let f = shot.frame.first; f <= shot.frame.last; f++) {
     const times = shutterTimes(shot.shutter, f, shot.seed);
     for (const light of shot.lights) {
+      // both averaged over the open shutter; the effective intensity is the light that gets
+      // through at each instant, averaged (not the product of the two averages)
       let v = 0;
-      let g = 0;
       let vg = 0;
       for (const t of times) {
         const st = lightState(shot, light, t);
         const vt = lightVisibility(shot, light, t, mattes, st);
-        const gt = st.gain;
         v += vt;
-        g += gt;
-        vg += vt * gt;
+        vg += vt * st.gain;
       }
       v /= times.length;
-      g /= times.length;
       const s = lightState(shot, light, f);
       const depth = light.depth ? evalScalar(light.depth, f) : s.depth;
-      rows.push({ frame: f, light: light.name, ...(s.placed ? { xPx: s.xPx, yPx: s.yPx } : {}), ...(depth !== undefined ? { depth } : {}), visibility: v, effectiveIntensity: light.world ? vg / times.length : v * g });
+      rows.push({ frame: f, light: light.name, ...(s.placed ? { xPx: s.xPx, yPx: s.yPx } : {}), ...(depth !== undefined ? { depth } : {}), visibility: v, effectiveIntensity: vg / times.length });
     }
   }
   return rows;

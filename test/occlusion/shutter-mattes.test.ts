@@ -11,6 +11,7 @@ import { loadShot } from '../../src/io/load-shot.js';
 import { FloatImage } from '../../src/raster/image.js';
 import { lightVisibility, renderFrame } from '../../src/render/render-frame.js';
 import { exposureSeconds, shutterTimes } from '../../src/timeline/shutter.js';
+import { visibilityRows } from '../../src/render/visibility-curves.js';
 import { tempDir } from '../helpers.js';
 
 const moving = (shutter: string) => `version: 1
@@ -158,5 +159,22 @@ describe('mattes from PNG sequences', () => {
     expect(img.data[(16 * 64 + 36) * 4]).toBeLessThan(0.05); // inside the disk, covered: only glow
     expect(img.data[(16 * 64 + 28) * 4]).toBeGreaterThan(0.9); // inside the disk, clear
     expect(readFileSync).toBeDefined();
+  });
+});
+
+describe('effective intensity over the shutter', () => {
+  it('is the light that gets through at each instant, averaged: not visibility times mean gain', async () => {
+    // the dot crosses a matte edge (x = 100) at frame 2 while its linear intensity ramps from 0 at
+    // t = 1.75 to 2 at t = 2.25; a 180-degree shutter opens over exactly that interval. Covered
+    // while t < 2 and lit after: mean visibility 1/2, mean gain 1, but the light through is
+    // (1 / 0.5) x integral from 2 to 2.25 of 4 (t - 1.75) dt = 0.75 (computed)
+    const text = moving('shutter: { angle: 180, samples: 64 }')
+      .replace('    intensity: 0\n', '    intensity_unit: linear\n    intensity: [{ frame: 1.75, value: 0 }, { frame: 2.25, value: 2 }]\n')
+      .replace('output:', 'mattes: [{ name: edge, kind: alpha, path: m/e.####.png }]\noutput:');
+    const shot = await shotFrom(text, sequence('m/e', [1, 2, 3], 200, 40, (f, x) => (x < 100 ? 1 : 0)));
+    const row = visibilityRows(shot).find((r) => r.frame === 2)!;
+    expect(row.visibility).toBeCloseTo(0.5, 1);
+    expect(row.effectiveIntensity).toBeGreaterThan(0.72);
+    expect(row.effectiveIntensity).toBeLessThan(0.78);
   });
 });
