@@ -12,7 +12,8 @@ import type { SceneCamera, SceneData, SceneLight, SceneNode, SceneSampler, Vec3,
 /** Scene files larger than this are refused before parsing. */
 export const MAX_SCENE_BYTES = 512 * 1024 * 1024;
 
-export type SceneResult = { scene: SceneData } | { error: string };
+/** A scene, or why not; `animation` marks a problem with the animation the shot named. */
+export type SceneResult = { scene: SceneData } | { error: string; animation?: true };
 
 /** Read a scene file; `animation` picks one of its animations by name (default: all of them together). */
 export async function readScene(file: string, animation?: string): Promise<SceneResult> {
@@ -89,7 +90,7 @@ function toScene(root: Root, animation?: string): SceneResult {
   const animations = root.listAnimations();
   const names = animations.map((a, i) => a.getName() || `#${i}`);
   if (animation !== undefined && !names.includes(animation)) {
-    return { error: `no animation named "${animation}" (animations: ${names.join(', ') || 'none'})` };
+    return { error: `no animation named "${animation}" (animations: ${names.join(', ') || 'none'})`, animation: true };
   }
   const by = new Map<string, string>();
   let duration = 0;

@@ -242,6 +242,10 @@ describe('bad scene input: one located line, exit code 3', () => {
       await writeScene(path.join(dir, 's.glb'), { ortho: true });
       return shotFile(dir, '{ scene: s.glb, node: Cam }', '  - { name: a, position: [1, 1], intensity: 0 }');
     }, /shot\.yaml:3:31: camera\.node: the camera of node "Cam" is orthographic; straylight projects through perspective cameras only/],
+    ['an animation that is not there', async (dir) => {
+      await writeScene(path.join(dir, 's.glb'), { times: [0, 1], cameraT: [[0, 0, 0], [1, 0, 0]] });
+      return shotFile(dir, '{ scene: s.glb, animation: Walk }', '  - { name: a, position: [1, 1], intensity: 0 }');
+    }, /shot\.yaml:3:36: camera\.animation: no animation named "Walk" \(animations: move\) in .*s\.glb$/],
     ['a light node that is not there', async (dir) => {
       await writeScene(path.join(dir, 's.glb'), { lights: [{ name: 'Lamp', type: 'point', at: [0, 0, -5], intensity: 1 }] });
       return shotFile(dir, '{ scene: s.glb }', '  - { name: a, from_scene: Lmap }');

@@ -65,14 +65,15 @@ function sceneCamera(ctx: ResolveContext, m: MapField, sceneField: Field): { cam
   const rel = sceneField.string('a path to a glTF 2.0 scene (.glb or .gltf)');
   const nodeField = m.get('node');
   const nodeName = nodeField?.string("the name of the camera's node");
-  m.get('animation')?.string('the name of one of the scene\'s animations');
+  const animField = m.get('animation');
+  animField?.string("the name of one of the scene's animations");
   if (rel === undefined) return undefined;
   if (!/\.(glb|gltf)$/i.test(rel)) return sceneField.error(`expected a glTF 2.0 scene (.glb or .gltf), found "${rel}"`);
   const abs = path.resolve(ctx.dir, rel);
   const shown = path.isAbsolute(rel) ? rel : path.join(ctx.shownDir, rel);
   const got = ctx.reader.scene?.(abs);
   if (!got) return sceneField.error(`cannot read scene ${shown}: it was not loaded (use loadShot, which reads scenes)`);
-  if ('error' in got) return sceneField.error(`cannot read scene ${shown}: ${got.error}`);
+  if ('error' in got) return got.animation && animField ? animField.error(`${got.error} in ${shown}`) : sceneField.error(`cannot read scene ${shown}: ${got.error}`);
   const data = got.scene;
   const camNodes = Object.keys(data.cameras).map(Number);
   const listed = camNodes.map((i) => data.nodes[i].name || `#${i}`).join(', ');

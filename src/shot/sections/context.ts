@@ -11,7 +11,7 @@ export interface ShotReader {
   presetNames?(): string[];
   presetPath?(name: string): string;
   /** a glTF scene named by the shot, read beforehand (reading one is asynchronous; see io/load-shot) */
-  scene?(absolutePath: string): { scene: SceneData } | { error: string } | undefined;
+  scene?(absolutePath: string): { scene: SceneData } | { error: string; animation?: true } | undefined;
 }
 
 export interface ResolveContext {
