@@ -80,3 +80,14 @@ export function fraction(name: string) {
 
 /** The look-dev overrides shared by still and render. */
 export const QUALITIES = ['draft', 'low', 'medium', 'high'] as const;
+
+/** A commander argument parser for a number within [min, max] (min excluded when `above`). */
+export function numberIn(name: string, min: number, max: number, above = false) {
+  return (v: string): number => {
+    const n = Number(v);
+    if (!/^\s*[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*$/.test(v) || !(above ? n > min : n >= min) || n > max) {
+      throw new UsageError(`${name}: expected a number ${above ? 'above' : 'from'} ${min}${above ? ' and at most' : ' to'} ${max}, found "${v}"`);
+    }
+    return n;
+  };
+}

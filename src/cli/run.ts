@@ -12,6 +12,7 @@ import { registerCheck } from './commands/check.js';
 import { registerFarm } from './commands/farm.js';
 import { registerFlashes } from './commands/flashes.js';
 import { registerLens } from './commands/lens.js';
+import { registerLights } from './commands/lights.js';
 import { registerRender } from './commands/render.js';
 import { registerSheet } from './commands/sheet.js';
 import { registerStill } from './commands/still.js';
@@ -23,6 +24,7 @@ export type { CliIO } from './context.js';
 /** The commands in the order `--help` lists them. */
 const COMMANDS: ((program: Command, ctx: CommandContext) => void)[] = [
   registerRender,
+  registerLights,
   registerBatch,
   registerFarm,
   registerVisibility,

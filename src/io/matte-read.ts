@@ -7,7 +7,8 @@ import path from 'node:path';
 import pngjs from 'pngjs';
 import { decodeExr, ExrFormatError, readExrHeader } from '../format/exr-read.js';
 import type { MatteImage } from '../occlusion/matte.js';
-import { whyNotReadable } from '../errors.js';
+import { InputError, whyNotReadable } from '../errors.js';
+import { readFrameLinear } from './read-frame.js';
 
 const { PNG } = pngjs;
 
@@ -36,14 +37,15 @@ function fsProblem(e: unknown): string | undefined {
   return (e as NodeJS.ErrnoException).code ? whyNotReadable(e) : undefined;
 }
 
-export function decodeMatte(file: string, channel: MatteChannel, kind: 'alpha' | 'depth'): MatteImage {
+export function decodeMatte(file: string, channel: MatteChannel, kind: 'alpha' | 'depth' | 'plate'): MatteImage {
   const ext = path.extname(file).toLowerCase();
-  const decode = decoders.get(ext);
+  const decode = kind === 'plate' && decoders.has(ext) ? plateLuminance : decoders.get(ext);
   if (!decode) throw new MatteFileError(`no matte reader for ${ext} files (known: ${matteFormats().join(', ')})`);
   try {
-    return decode(file, channel, kind);
+    return decode(file, channel, kind === 'plate' ? 'alpha' : kind);
   } catch (e) {
     if (e instanceof MatteFileError || e instanceof ExrFormatError) throw new MatteFileError(e.message);
+    if (e instanceof InputError) throw new MatteFileError(e.message.replace(`${file}: `, ''));
     const why = fsProblem(e);
     if (why) throw new MatteFileError(why);
     // anything a decoder library throws means the bytes are not what the name says
@@ -73,7 +75,7 @@ function head(file: string, bytes: number): Buffer {
  * the matte reads is there), so a long sequence is checked without decoding it. Problems are
  * MatteFileErrors in our words.
  */
-export function matteFrameSize(file: string, channel?: MatteChannel, kind: 'alpha' | 'depth' = 'alpha'): { width: number; height: number } {
+export function matteFrameSize(file: string, channel?: MatteChannel, kind: 'alpha' | 'depth' | 'plate' = 'alpha'): { width: number; height: number } {
   const ext = path.extname(file).toLowerCase();
   try {
     if (ext === '.png') {
@@ -92,7 +94,9 @@ export function matteFrameSize(file: string, channel?: MatteChannel, kind: 'alph
         if (start.length >= statSync(file).size) throw e;
         header = readExrHeader(readFileSync(file));
       }
-      exrMatteChannel(header.channels.map((c) => c.name), channel, kind);
+      const names = header.channels.map((c) => c.name);
+      if (kind !== 'plate') exrMatteChannel(names, channel, kind);
+      else if (!['R', 'G', 'B'].every((c) => names.includes(c)) && !names.includes('Y')) throw new MatteFileError(`no R, G, B or Y channels to read the plate's luminance from (the file has ${names.join(', ')})`);
       return header;
     }
     throw new MatteFileError(`no matte reader for ${ext} files (known: ${matteFormats().join(', ')})`);
@@ -100,6 +104,14 @@ export function matteFrameSize(file: string, channel?: MatteChannel, kind: 'alph
     if (e instanceof MatteFileError || e instanceof ExrFormatError) throw new MatteFileError(e.message);
     throw new MatteFileError(fsProblem(e) ?? 'cannot be read');
   }
+}
+
+/** A plate frame's luminance (Rec.709 weights) in linear light: PNG through its transfer, OpenEXR R, G, B or Y. */
+function plateLuminance(file: string): MatteImage {
+  const f = readFrameLinear(file);
+  const values = new Float32Array(f.width * f.height);
+  for (let i = 0; i < values.length; i++) values[i] = 0.2126 * f.rgb[i * 3] + 0.7152 * f.rgb[i * 3 + 1] + 0.0722 * f.rgb[i * 3 + 2];
+  return { width: f.width, height: f.height, values };
 }
 
 /** PNG, 8 or 16 bits: the channel (default r) scaled to [0, 1]; grey images give the same value in r, g, b. */

@@ -16,6 +16,7 @@ import { FloatImage } from '../raster/image.js';
 import type { LightFlare, ResolvedLight, ResolvedShot } from '../shot/types.js';
 import { evalScalar } from '../timeline/track.js';
 import { lightState, type LightState } from './frame-state.js';
+import { plateVisibility } from './plate-visibility.js';
 import { shutterTimes } from '../timeline/shutter.js';
 
 /** What a shot needs precomputed before its frames render. */
@@ -80,7 +81,11 @@ export function coverageFor(shot: ResolvedShot, light: ResolvedLight, t: number,
     const sx = img.width / shot.frame.widthPx;
     const sy = img.height / shot.frame.heightPx;
     const scaled = sx === 1 && sy === 1 ? (f: CoverageLookup) => f : (f: CoverageLookup): CoverageLookup => (x, y) => f(x * sx, y * sy);
-    if (m.kind === 'alpha') {
+    if (m.kind === 'plate') {
+      // the plate says how much of the light shows: the same share covered all over its disk
+      const covered = 1 - plateVisibility(shot, light, m, frame, mattes);
+      out.push(() => covered);
+    } else if (m.kind === 'alpha') {
       out.push(scaled(alphaCoverage(img, m.invert, light.offFrame)));
     } else {
       // the shot's depth keys, or else the depth the camera sees the light at

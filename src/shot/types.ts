@@ -33,7 +33,9 @@ export interface ResolvedFrame {
 
 export interface ResolvedMatte {
   name: string;
-  kind: 'alpha' | 'depth';
+  kind: 'alpha' | 'depth' | 'plate';
+  /** plate mattes: the luminance (linear) at which the plate counts a light's core as bright */
+  plate?: { threshold: number };
   /** absolute frame-path template */
   template: string;
   /** r/g/b/a (PNG), any channel name (OpenEXR); undefined: the format's default (PNG r; EXR Z or A) */

@@ -25,6 +25,7 @@ const LAYER: Record<string, number> = {
   shot: 3,
   occlusion: 3,
   elements: 3,
+  plate: 3,
   io: 4,
   render: 5,
   review: 6,

@@ -17,7 +17,7 @@ export function resolveMattes(ctx: ResolveContext, f: Field): ResolvedMatte[] | 
     const name = m.require('name', "the matte's name")?.string('a name');
     if (name && seen.has(name)) m.get('name')!.error(`the name "${name}" is already used by another matte`);
     if (name) seen.add(name);
-    const kind = m.require('kind', 'alpha (coverage) or depth')?.oneOf(['alpha', 'depth'] as const);
+    const kind = m.require('kind', 'alpha (coverage), depth, or plate (the footage itself)')?.oneOf(['alpha', 'depth', 'plate'] as const);
     const pathField = m.require('path', 'a frame-path template of the matte images, such as mattes/fg.####.png');
     let template: string | undefined;
     const rel = pathField?.string('a frame-path template');
@@ -29,11 +29,13 @@ export function resolveMattes(ctx: ResolveContext, f: Field): ResolvedMatte[] | 
     const isExr = template !== undefined && path.extname(template).toLowerCase() === '.exr';
     const ch = m.get('channel');
     let channel: string | undefined;
-    if (ch && isExr) {
+    if (ch && kind === 'plate') {
+      ch.error('a plate matte reads the plate\'s luminance (R, G, B or Y); it takes no channel');
+    } else if (ch && isExr) {
       channel = ch.string('an OpenEXR channel name, such as Z, A or depth.Z');
       if (channel !== undefined && !/^[\x21-\x7e]{1,255}$/.test(channel)) ch.error(`"${channel}" is not an OpenEXR channel name`);
     } else if (ch) channel = ch.oneOf(['r', 'g', 'b', 'a'] as const);
-    else channel = isExr ? undefined : 'r';
+    else channel = isExr || kind === 'plate' ? undefined : 'r';
     const off = m.get('offset');
     const offset = off ? off.number({ integer: true, min: -1e9, max: 1e9 }) : 0;
     const bf = m.get('before');
@@ -50,6 +52,12 @@ export function resolveMattes(ctx: ResolveContext, f: Field): ResolvedMatte[] | 
     const far = m.get('far');
     const scale = m.get('scale');
     const tol = m.get('tolerance');
+    const thr = m.get('threshold');
+    let plate: ResolvedMatte['plate'];
+    if (kind === 'plate') {
+      const threshold = thr ? thr.number({ min: 0, minExclusive: true, max: 1e12 }) : 0.9;
+      if (threshold !== undefined) plate = { threshold };
+    } else if (thr) thr.error(`threshold is for plate mattes; this one is kind: ${kind ?? 'alpha'}`);
     if (kind === 'depth') {
       // OpenEXR depth is scene depth as rendered; PNG depth is a [0, 1] code between near and far
       const encoding = enc ? enc.oneOf(['normalised', 'inverted', 'linear'] as const) : isExr ? 'linear' : 'normalised';
@@ -68,7 +76,7 @@ export function resolveMattes(ctx: ResolveContext, f: Field): ResolvedMatte[] | 
       }
     }
     m.finish();
-    if (!name || !kind || !template || (ch && channel === undefined) || offset === undefined || !before || !after || !resize || (kind === 'depth' && !depth)) return undefined;
+    if (!name || !kind || !template || (ch && channel === undefined) || offset === undefined || !before || !after || !resize || (kind === 'depth' && !depth) || (kind === 'plate' && !plate)) return undefined;
     return {
       name,
       kind,
@@ -79,6 +87,7 @@ export function resolveMattes(ctx: ResolveContext, f: Field): ResolvedMatte[] | 
       after,
       invert: inv ? inv.scalar === true : false,
       ...(depth ? { depth } : {}),
+      ...(plate ? { plate } : {}),
       resize,
       at: pathField!.loc,
       atPath: pathField!.path,
