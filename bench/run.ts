@@ -311,5 +311,28 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   rmSync(dir, { recursive: true, force: true });
 }
 
+// --- plates: finding and tracking lights in a 1920x1080 OpenEXR plate frame against reading it
+// (target: detection and tracking add at most 20% to the read)
+{
+  const { encodeExr } = await import('../src/io/exr.js');
+  const { readFrameLinear } = await import('../src/io/read-frame.js');
+  const { detectBlobs, luminance } = await import('../src/plate/detect.js');
+  const { linkTracks } = await import('../src/plate/track.js');
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  const plateFrame = renderFrame(glowShot(1920, 1080), 1);
+  for (let i = 0; i < plateFrame.data.length; i += 4) for (let c = 0; c < 3; c++) plateFrame.data[i + c] += 0.05 + 0.02 * Math.sin(i / 7919);
+  const file = path.join(dir, 'plate.exr');
+  writeFileSync(file, encodeExr(plateFrame, { type: 'half', compression: 'zip', alpha: 'none', pixelAspect: 1 }));
+  const frame = readFrameLinear(file);
+  const readMs = time(() => readFrameLinear(file));
+  const opts = { threshold: { absolute: 0.95 }, minArea: 4, maxCount: 8, clip: Infinity };
+  const findMs = time(() => detectBlobs(frame, opts, luminance(frame)));
+  const blobs = detectBlobs(frame, opts);
+  const seq = Array.from({ length: 48 }, (_, f) => ({ frame: f, blobs: blobs.map((b) => ({ ...b, x: b.x + f, y: b.y + 0.5 * f })) }));
+  const linkMs = time(() => linkTracks(seq, { gate: 48, maxGap: 12, minFrames: 3 })) / 48;
+  rows.push(['plate 1920x1080 EXR: find lights + track, vs reading the frame (target < 20%)', `${ms(findMs + linkMs)} vs ${ms(readMs)} (+${((100 * (findMs + linkMs)) / readMs).toFixed(0)}%; ${blobs.length} lights)`]);
+  rmSync(dir, { recursive: true, force: true });
+}
+
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
 for (const [name, v] of rows) console.log(`  ${name.padEnd(58)} ${v}`);

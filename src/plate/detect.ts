@@ -80,13 +80,14 @@ export function detectBlobs(frame: PlateFrame, opts: DetectOptions, y: Float32Ar
   const { width: w, height: h } = frame;
   const t = thresholdOf(y, opts.threshold);
   if (!(t > 0)) return [];
-  const label = new Int32Array(w * h).fill(-1);
+  // 1 once a pixel is taken into a blob; the scan tests the luminance first (most pixels are dark)
+  const taken = new Uint8Array(w * h);
   const stack: number[] = [];
   const blobs: Blob[] = [];
-  for (let start = 0; start < w * h; start++) {
-    if (label[start] !== -1 || !(y[start] >= t)) continue;
-    const id = blobs.length;
-    label[start] = id;
+  const n = w * h;
+  for (let start = 0; start < n; start++) {
+    if (!(y[start] >= t) || taken[start]) continue;
+    taken[start] = 1;
     stack.push(start);
     let area = 0;
     let flux = 0;
@@ -126,8 +127,8 @@ export function detectBlobs(frame: PlateFrame, opts: DetectOptions, y: Float32Ar
           const qx = px + dx;
           if (qx < 0 || qx >= w || (dx === 0 && dy === 0)) continue;
           const q = qy * w + qx;
-          if (label[q] === -1 && y[q] >= t) {
-            label[q] = id;
+          if (y[q] >= t && !taken[q]) {
+            taken[q] = 1;
             stack.push(q);
           }
         }
@@ -143,16 +144,28 @@ export function detectBlobs(frame: PlateFrame, opts: DetectOptions, y: Float32Ar
     const bg = [0, 0, 0];
     let nHalo = 0;
     let nBg = 0;
+    const rim2 = rim * rim;
+    const reach2 = reach * reach;
+    const outer2 = (reach + 4) * (reach + 4);
+    const rgbIn = frame.rgb;
     for (let qy = Math.max(0, Math.floor(cy - reach - 4)); qy < Math.min(h, Math.ceil(cy + reach + 4)); qy++) {
+      const dy2 = (qy + 0.5 - cy) ** 2;
       for (let qx = Math.max(0, Math.floor(cx - reach - 4)); qx < Math.min(w, Math.ceil(cx + reach + 4)); qx++) {
+        const r2 = (qx + 0.5 - cx) ** 2 + dy2;
+        if (r2 < rim2 || r2 > outer2) continue;
         const q = qy * w + qx;
-        const r = Math.hypot(qx + 0.5 - cx, qy + 0.5 - cy);
-        const c = [frame.rgb[q * 3], frame.rgb[q * 3 + 1], frame.rgb[q * 3 + 2]];
-        if (r > reach && r <= reach + 4) {
-          for (let k = 0; k < 3; k++) bg[k] += c[k];
+        const cr = rgbIn[q * 3];
+        const cg = rgbIn[q * 3 + 1];
+        const cb = rgbIn[q * 3 + 2];
+        if (r2 > reach2) {
+          bg[0] += cr;
+          bg[1] += cg;
+          bg[2] += cb;
           nBg++;
-        } else if (r >= rim && r <= reach && y[q] < 0.5 * t && y[q] >= t / 16 && Math.max(c[0], c[1], c[2]) < opts.clip) {
-          for (let k = 0; k < 3; k++) halo[k] += c[k];
+        } else if (y[q] < 0.5 * t && y[q] >= t / 16 && Math.max(cr, cg, cb) < opts.clip) {
+          halo[0] += cr;
+          halo[1] += cg;
+          halo[2] += cb;
           nHalo++;
         }
       }

@@ -39,6 +39,11 @@ describe('the npm package', () => {
     expect(scene.stderr).toBe('');
     expect(scene.status).toBe(0);
     expect(scene.stdout).toMatch(/^ {2}path\s+warning-lamp: on the frame 48 of 48 frames/m);
+    // the third tracks its lamp in the plate shipped beside it, which is also its matte
+    const plate = spawnSync(bin, ['check', path.join(installed, 'shots', 'park-lamp.yaml')], { cwd: elsewhere, encoding: 'utf8' });
+    expect(plate.stderr).toBe('');
+    expect(plate.status).toBe(0);
+    expect(plate.stdout).toMatch(/^matte\s+plate: plate, .*park\.####\.png \(frames 1001-1048\)/m);
     // preset lenses are found beside the installed code, whatever the current folder
     const lens = spawnSync(bin, ['lens', 'double-gauss-50'], { cwd: elsewhere, encoding: 'utf8' });
     expect(lens.status).toBe(0);
