@@ -8,6 +8,7 @@
 #   blender, python3-numpy  the 3-D scene reference: builds and exports the test scene (glTF), reports
 #              where its lights project and renders its depth pass (the exporter needs numpy)
 #   python3-opencv  the reference for finding lights in plates (connected components, moments)
+#   python3-pyopencolorio  the reference for colour-space conversions (OpenColorIO's built-in ACES transforms)
 set -euo pipefail
 need=()
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
@@ -18,6 +19,7 @@ command -v ffprobe >/dev/null 2>&1 || need+=(ffmpeg)
 command -v blender >/dev/null 2>&1 || need+=(blender)
 /usr/bin/python3 -c 'import numpy' >/dev/null 2>&1 || need+=(python3-numpy)
 /usr/bin/python3 -c 'import cv2' >/dev/null 2>&1 || need+=(python3-opencv)
+/usr/bin/python3 -c 'import PyOpenColorIO' >/dev/null 2>&1 || need+=(python3-pyopencolorio)
 if [ ${#need[@]} -gt 0 ]; then
   sudo=""
   [ "$(id -u)" -eq 0 ] || sudo="sudo"

@@ -24,6 +24,8 @@ export interface ExrImageData {
   dataWindow: [number, number, number, number];
   displayWindow: [number, number, number, number];
   pixelAspectRatio: number;
+  /** the standard chromaticities attribute, when present */
+  chromaticities?: number[];
 }
 
 export class ExrFormatError extends Error {}
@@ -80,6 +82,8 @@ export interface ExrHeader {
   dataWindow: [number, number, number, number];
   displayWindow: [number, number, number, number];
   pixelAspectRatio: number;
+  /** the standard chromaticities attribute (x, y of red, green, blue, white), when present */
+  chromaticities?: number[];
   /** the display window's size */
   width: number;
   height: number;
@@ -105,6 +109,7 @@ export function readExrHeader(buf: Buffer): ExrHeader {
   let dataWindow: [number, number, number, number] | undefined;
   let displayWindow: [number, number, number, number] | undefined;
   let pixelAspectRatio = 1;
+  let chromaticities: number[] | undefined;
   for (;;) {
     const name = c.str(maxName);
     if (name === '') break;
@@ -136,15 +141,17 @@ export function readExrHeader(buf: Buffer): ExrHeader {
       else displayWindow = box;
     } else if (name === 'pixelAspectRatio') {
       pixelAspectRatio = buf.readFloatLE(start);
+    } else if (name === 'chromaticities' && type === 'chromaticities' && size === 32) {
+      chromaticities = [0, 1, 2, 3, 4, 5, 6, 7].map((i) => buf.readFloatLE(start + i * 4));
     }
     c.p = start + size;
   }
   if (!channels || !compression || !dataWindow || !displayWindow) throw new ExrFormatError('the header lacks channels, compression, dataWindow or displayWindow');
-  return { channels, compression, dataWindow, displayWindow, pixelAspectRatio, width: displayWindow[2] - displayWindow[0] + 1, height: displayWindow[3] - displayWindow[1] + 1, end: c.p };
+  return { channels, compression, dataWindow, displayWindow, pixelAspectRatio, ...(chromaticities ? { chromaticities } : {}), width: displayWindow[2] - displayWindow[0] + 1, height: displayWindow[3] - displayWindow[1] + 1, end: c.p };
 }
 
 export function decodeExr(buf: Buffer): ExrImageData {
-  const { channels, compression, dataWindow, displayWindow, pixelAspectRatio, end } = readExrHeader(buf);
+  const { channels, compression, dataWindow, displayWindow, pixelAspectRatio, chromaticities, end } = readExrHeader(buf);
   const c = new Cursor(buf, end);
   const per = LINES[compression];
   if (!per) throw new ExrFormatError(`${compression.toUpperCase()} compression is not supported (supported: none, RLE, ZIPS, ZIP, PIZ); re-save the matte with one of those`);
@@ -210,6 +217,7 @@ export function decodeExr(buf: Buffer): ExrImageData {
     dataWindow,
     displayWindow,
     pixelAspectRatio,
+    ...(chromaticities ? { chromaticities } : {}),
   };
 }
 

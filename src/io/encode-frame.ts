@@ -1,6 +1,7 @@
 // Encoding a rendered frame as the shot's output asks: PNG (8/16 bit) or OpenEXR.
 
-import type { FloatImage } from '../raster/image.js';
+import { COLOUR_SPACES, convertMatrix, type ColourSpace } from '../colour/spaces.js';
+import { FloatImage } from '../raster/image.js';
 import type { ResolvedFrame, ResolvedOutput } from '../shot/types.js';
 import { nominalRate, framesToTimecode } from '../timeline/timecode.js';
 import { encodeExr, type ExrTimeCode } from './exr.js';
@@ -26,9 +27,29 @@ export function encodeOutput(img: FloatImage, o: ResolvedOutput, pixelAspect: nu
   if (o.format === 'exr') {
     const alpha = o.alpha === 'none' ? 'none' : o.alpha === 'emission' ? 'zero' : 'derived';
     const tc = at ? exrTimeCode(at.frame, at.n) : undefined;
-    return encodeExr(img, { type: o.exr.type, compression: o.exr.compression, alpha, pixelAspect, ...(tc ? { timeCode: tc } : {}), ...(at ? { framesPerSecond: at.frame.rate } : {}) });
+    const space = o.colourSpace === 'rec709' ? undefined : COLOUR_SPACES[o.colourSpace];
+    const chromaticities = space ? [...space.red, ...space.green, ...space.blue, ...space.white] : undefined;
+    return encodeExr(space ? inSpace(img, o.colourSpace) : img, { type: o.exr.type, compression: o.exr.compression, alpha, pixelAspect, ...(tc ? { timeCode: tc } : {}), ...(at ? { framesPerSecond: at.frame.rate } : {}), ...(chromaticities ? { chromaticities } : {}) });
   }
   return encodePng(img, pngOptions(o));
+}
+
+/** A copy of the (linear Rec.709) frame in another space; alpha as it is. */
+function inSpace(img: FloatImage, space: ColourSpace): FloatImage {
+  const m = convertMatrix('rec709', space);
+  const out = new FloatImage(img.width, img.height);
+  const s = img.data;
+  const d = out.data;
+  for (let i = 0; i < s.length; i += 4) {
+    const r = s[i];
+    const g = s[i + 1];
+    const b = s[i + 2];
+    d[i] = m[0] * r + m[1] * g + m[2] * b;
+    d[i + 1] = m[3] * r + m[4] * g + m[5] * b;
+    d[i + 2] = m[6] * r + m[7] * g + m[8] * b;
+    d[i + 3] = s[i + 3];
+  }
+  return out;
 }
 
 /** Allocate and fault in the encoder's per-thread buffers for frames of this size (PNG only). */

@@ -26,6 +26,8 @@ export interface ExrOptions {
   timeCode?: ExrTimeCode;
   /** the sequence's rate (the standard `framesPerSecond` attribute) */
   framesPerSecond?: { num: number; den: number };
+  /** the primaries and white of the values (x, y of red, green, blue, white); default Rec.709 / D65 */
+  chromaticities?: readonly number[];
 }
 
 export interface ExrTimeCode {
@@ -171,8 +173,8 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
   }
   ch.u8(0);
   w.attr('channels', 'chlist', ch.done());
-  // Rec.709 / sRGB primaries and D65 white (IEC 61966-2-1)
-  w.attr('chromaticities', 'chromaticities', floats(0.64, 0.33, 0.3, 0.6, 0.15, 0.06, 0.3127, 0.329));
+  // the values' primaries and white: by default Rec.709 / sRGB primaries and D65 (IEC 61966-2-1)
+  w.attr('chromaticities', 'chromaticities', floats(...(opts.chromaticities ?? [0.64, 0.33, 0.3, 0.6, 0.15, 0.06, 0.3127, 0.329])));
   w.attr('compression', 'compression', Buffer.from([COMPRESSION_CODE[opts.compression]]));
   w.attr('dataWindow', 'box2i', box2i(0, 0, width - 1, height - 1));
   w.attr('displayWindow', 'box2i', box2i(0, 0, width - 1, height - 1));

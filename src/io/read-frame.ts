@@ -8,6 +8,7 @@ import path from 'node:path';
 import pngjs from 'pngjs';
 import { srgbDecode } from '../colour/srgb.js';
 import { InputError } from '../errors.js';
+import { matrixFromChromaticities, spaceOfChromaticities } from '../colour/spaces.js';
 import { decodeExr, ExrFormatError } from '../format/exr-read.js';
 import { parseFrameTemplate, framePath } from '../format/frame-path.js';
 
@@ -59,10 +60,20 @@ function readExrLinear(file: string): LinearFrame {
   const [r, g, b] = names.map((c) => ch.get(c)!);
   const n = img.width * img.height;
   const rgb = new Float32Array(n * 3);
+  // a file in other primaries (its chromaticities attribute) is shown converted to Rec.709
+  const c = img.chromaticities;
+  const m = c && names[0] === 'R' && spaceOfChromaticities(c) !== 'rec709' ? matrixFromChromaticities(c, 'rec709') : undefined;
   for (let p = 0; p < n; p++) {
-    rgb[p * 3] = r[p];
-    rgb[p * 3 + 1] = g[p];
-    rgb[p * 3 + 2] = b[p];
+    if (m) {
+      const [x, y, z] = [r[p], g[p], b[p]];
+      rgb[p * 3] = m[0] * x + m[1] * y + m[2] * z;
+      rgb[p * 3 + 1] = m[3] * x + m[4] * y + m[5] * z;
+      rgb[p * 3 + 2] = m[6] * x + m[7] * y + m[8] * z;
+    } else {
+      rgb[p * 3] = r[p];
+      rgb[p * 3 + 1] = g[p];
+      rgb[p * 3 + 2] = b[p];
+    }
   }
   return { width: img.width, height: img.height, rgb };
 }

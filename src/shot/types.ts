@@ -8,6 +8,7 @@ import type { FrameRate } from '../timeline/frame-rate.js';
 import type { Key, PathShape } from '../timeline/track.js';
 import type { Vec2 } from '../timeline/path.js';
 import type { ResolvedCamera, WorldPlacement } from '../scene/camera.js';
+import type { ColourSpace } from '../colour/spaces.js';
 
 export type OutputFormat = 'png16' | 'png8' | 'exr';
 export type Transfer = 'srgb' | 'linear';
@@ -78,7 +79,7 @@ export interface ResolvedLight {
   /** linear Rec.709 RGB with unit luminance */
   colour: [number, number, number];
   /** where the colour came from, for reports */
-  colourSpec: { kelvin: number } | { rgb: [number, number, number] };
+  colourSpec: { kelvin: number } | { rgb: [number, number, number]; space?: ColourSpace };
   radiusPx: number;
   /** names of the mattes that can cover this light */
   occludedBy: string[];
@@ -181,6 +182,8 @@ export interface ResolvedOutput {
   passes: 'combined' | 'separate';
   /** OpenEXR: pixel type and compression (format exr) */
   exr: { type: 'half' | 'float'; compression: 'none' | 'zips' | 'zip' };
+  /** the primaries and white frames are written in (scene-linear; anything but rec709 needs OpenEXR) */
+  colourSpace: ColourSpace;
 }
 
 /** The shot: its frame and lights, its flare settings (LightFlare's, which a light may override), and the rest. */

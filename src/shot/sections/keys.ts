@@ -3,6 +3,7 @@
 
 import { blackbodyRgb } from '../../colour/blackbody.js';
 import { luminance } from '../../colour/srgb.js';
+import { apply, convertMatrix, SPACE_NAMES } from '../../colour/spaces.js';
 import { LINEAR, parseEasing, type Easing } from '../../timeline/easing.js';
 import type { Vec2 } from '../../timeline/path.js';
 import type { Key } from '../../timeline/track.js';
@@ -71,22 +72,28 @@ export function keyList<V>(ctx: ResolveContext, f: Field, list: Field[], value: 
 }
 
 export function resolveColour(ctx: ResolveContext, f: Field): { rgb: [number, number, number]; spec: ResolvedLight['colourSpec'] } | undefined {
-  const m = f.map('{kelvin: K} or {rgb: [r, g, b]}');
+  const m = f.map('{kelvin: K} or {rgb: [r, g, b], space: SPACE}');
   if (!m) return undefined;
   const k = m.get('kelvin');
   const rgbField = m.get('rgb');
+  const spaceField = m.get('space');
   m.finish();
   if (k && rgbField) return f.error('give either kelvin or rgb, not both');
+  if (k && spaceField) return spaceField.error('space goes with rgb; a colour temperature has no primaries');
   if (k) {
     const kelvin = k.number({ min: 1000, max: 40000 });
     return kelvin === undefined ? undefined : { rgb: blackbodyRgb(kelvin), spec: { kelvin } };
   }
   if (rgbField) {
-    const rgb = rgbField.numbers(3, { min: 0, max: 1e6 }) as [number, number, number] | undefined;
-    if (!rgb) return undefined;
+    const given = rgbField.numbers(3, { min: 0, max: 1e6 }) as [number, number, number] | undefined;
+    const space = spaceField ? spaceField.oneOf(SPACE_NAMES) : 'rec709';
+    if (!given || !space) return undefined;
+    // lights are drawn in linear Rec.709: a colour in another space is converted (it may fall
+    // outside Rec.709's gamut, with a negative component, which linear light keeps)
+    const rgb = space === 'rec709' ? given : apply(convertMatrix(space, 'rec709'), given);
     const lum = luminance(...rgb);
     if (lum <= 0) return rgbField.error('expected a colour with some luminance, found black');
-    return { rgb: [rgb[0] / lum, rgb[1] / lum, rgb[2] / lum], spec: { rgb } };
+    return { rgb: [rgb[0] / lum, rgb[1] / lum, rgb[2] / lum], spec: space === 'rec709' ? { rgb: given } : { rgb: given, space } };
   }
   return f.error('expected {kelvin: K} or {rgb: [r, g, b]}, found an empty mapping');
 }

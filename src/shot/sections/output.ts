@@ -1,10 +1,12 @@
-// The shot's `output`: frame template, format, transfer, alpha, passes and OpenEXR settings.
+// The shot's `output`: frame template, format, transfer, alpha, passes, OpenEXR settings and the
+// colour space frames are written in.
 
 import path from 'node:path';
 import { parseFrameTemplate } from '../../format/frame-path.js';
 import type { Field } from '../source.js';
 import type { ResolvedOutput } from '../types.js';
 import type { ResolveContext } from './context.js';
+import { SPACE_NAMES } from '../../colour/spaces.js';
 
 export function resolveOutput(ctx: ResolveContext, f: Field): ResolvedOutput | undefined {
   const m = f.map();
@@ -32,6 +34,11 @@ export function resolveOutput(ctx: ResolveContext, f: Field): ResolvedOutput | u
   if (alpha === 'emission' && format !== 'exr') af!.error('alpha: emission needs format: exr (PNG stores straight alpha, so light under a zero alpha would be lost)');
   const pf = m.get('passes');
   const passes = pf ? pf.oneOf(['combined', 'separate'] as const) : 'combined';
+  const csf = m.get('colour_space');
+  const colourSpace = csf ? csf.oneOf(SPACE_NAMES) : 'rec709';
+  if (colourSpace && colourSpace !== 'rec709' && format && format !== 'exr') {
+    csf!.error(`PNG frames are display-referred sRGB (Rec.709 primaries); ${colourSpace} output needs format: exr`);
+  }
   m.finish();
   const rel = pathField?.string('a frame-path template such as render/shot.####.png');
   let template: string | undefined;
@@ -40,10 +47,11 @@ export function resolveOutput(ctx: ResolveContext, f: Field): ResolvedOutput | u
     if (problem) pathField!.error(problem);
     else template = path.resolve(ctx.dir, rel);
   }
-  if (!template || !format || !transfer || !alpha || !passes || !exr) return undefined;
+  if (!template || !format || !transfer || !alpha || !passes || !exr || !colourSpace) return undefined;
+  if (colourSpace !== 'rec709' && format !== 'exr') return undefined;
   if (format === 'exr' && transfer === 'srgb') return undefined;
   if (alpha === 'emission' && format !== 'exr') return undefined;
-  return { template, format, transfer, alpha, passes, exr };
+  return { template, format, transfer, alpha, passes, exr, colourSpace };
 }
 
 /** A problem with an output template for a format, or undefined when it is fine. */
