@@ -231,6 +231,22 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   }
 }
 
+// --- layered OpenEXR: a 1920x1080 half ZIP frame of a shot with all seven elements, written
+// with its element layers and as the combined image alone (target: at most 3x)
+{
+  const { encodeExr } = await import('../src/io/exr.js');
+  const { renderLayers } = await import('../src/render/passes.js');
+  const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
+  const base = flareShot(1920, 1080, 1, dir);
+  const shot = { ...base, streak: { ...base.streak, fraction: 0.02 }, veil: { fraction: 0.01 }, dust: { ...base.dust, fraction: 0.02 }, starburst: { ...base.starburst, size: 20 }, output: { ...base.output, format: 'exr' as const, passes: 'layers' as const } };
+  const { combined, layers } = renderLayers(shot, 1);
+  const opts = { type: 'half' as const, compression: 'zip' as const, alpha: 'none' as const, pixelAspect: 1 };
+  const one = time(() => encodeExr(combined, opts), 3);
+  const all = time(() => encodeExr(combined, { ...opts, layers }), 3);
+  rows.push([`1920x1080 EXR half ZIP: combined + ${layers.length} element layers vs combined alone (target < 3x)`, `${ms(all)} vs ${ms(one)} (x${(all / one).toFixed(2)})`]);
+  rmSync(dir, { recursive: true, force: true });
+}
+
 // --- validation: resolving a shot of 100 and of 1,000 lights (the cap), YAML parse included;
 // linear validation keeps the ratio near 10
 {

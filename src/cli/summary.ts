@@ -110,7 +110,7 @@ export function shotSummary(shot: ResolvedShot, shown: string, run?: SummaryCont
   if (on.has('streak')) lines.push(['streak', `${shot.streak.fraction} of each light's flux, length ${shot.streak.lengthPx} px, thickness ${shot.streak.thicknessPx} px${gainNote('streak')}`]);
   if (on.has('dust')) lines.push(['dust', `${shot.dust.fraction} of each light's flux, density ${shot.dust.density}, reach ${shot.dust.reachPx} px, seed ${shot.dust.seed}${gainNote('dust')}`]);
   const o = shot.output;
-  lines.push(['output', `${o.template} (${o.format}, ${o.transfer} transfer, alpha ${o.alpha}${o.passes === 'separate' ? ', one sequence per element' : ''})`]);
+  lines.push(['output', `${o.template} (${o.format}, ${o.transfer} transfer, alpha ${o.alpha}${o.passes === 'separate' ? ', one sequence per element' : o.passes === 'layers' ? `, each element a layer: ${activeElements(shot).join(', ')}` : ''}${o.colourSpace !== 'rec709' ? `, ${o.colourSpace}` : ''})`]);
   if (run) {
     const inside = (dir: string) => {
       const rel = path.relative(dir, o.template);

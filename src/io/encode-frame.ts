@@ -22,14 +22,15 @@ export function exrTimeCode(frame: ResolvedFrame, n: number): ExrTimeCode | unde
   return { hours, minutes, seconds, frame: f, dropFrame: frame.dropFrame };
 }
 
-/** Encode a frame; `at` (the shot's frame and the frame number) adds OpenEXR's timecode and rate. */
-export function encodeOutput(img: FloatImage, o: ResolvedOutput, pixelAspect: number, at?: { frame: ResolvedFrame; n: number }): Buffer {
+/** Encode a frame; `at` (the shot's frame and the frame number) adds OpenEXR's timecode and rate;
+ * `layers`, OpenEXR layers beside the frame's own channels. */
+export function encodeOutput(img: FloatImage, o: ResolvedOutput, pixelAspect: number, at?: { frame: ResolvedFrame; n: number }, layers?: { name: string; img: FloatImage }[]): Buffer {
   if (o.format === 'exr') {
     const alpha = o.alpha === 'none' ? 'none' : o.alpha === 'emission' ? 'zero' : 'derived';
     const tc = at ? exrTimeCode(at.frame, at.n) : undefined;
     const space = o.colourSpace === 'rec709' ? undefined : COLOUR_SPACES[o.colourSpace];
     const chromaticities = space ? [...space.red, ...space.green, ...space.blue, ...space.white] : undefined;
-    return encodeExr(space ? inSpace(img, o.colourSpace) : img, { type: o.exr.type, compression: o.exr.compression, alpha, pixelAspect, ...(tc ? { timeCode: tc } : {}), ...(at ? { framesPerSecond: at.frame.rate } : {}), ...(chromaticities ? { chromaticities } : {}) });
+    return encodeExr(space ? inSpace(img, o.colourSpace) : img, { type: o.exr.type, compression: o.exr.compression, alpha, pixelAspect, ...(tc ? { timeCode: tc } : {}), ...(at ? { framesPerSecond: at.frame.rate } : {}), ...(chromaticities ? { chromaticities } : {}), ...(layers ? { layers: space ? layers.map((l) => ({ name: l.name, img: inSpace(l.img, o.colourSpace) })) : layers } : {}) });
   }
   return encodePng(img, pngOptions(o));
 }

@@ -28,6 +28,9 @@ export interface ExrOptions {
   framesPerSecond?: { num: number; den: number };
   /** the primaries and white of the values (x, y of red, green, blue, white); default Rec.709 / D65 */
   chromaticities?: readonly number[];
+  /** more RGB layers beside the image's own (its R, G, B[, A] are the default layer): channels
+   * NAME.R, NAME.G, NAME.B, as OpenEXR names the channels of a layer */
+  layers?: { name: string; img: FloatImage }[];
 }
 
 export interface ExrTimeCode {
@@ -87,6 +90,45 @@ export function toHalf(v: number): number {
   const rest = mant & 0x1fff;
   if (rest > 0x1000 || (rest === 0x1000 && h & 1)) h++; // may carry into the exponent: still right
   return sign | h;
+}
+
+/** half's range ends at its largest finite value; NaN becomes 0 */
+function clampHalf(v: number): number {
+  return v === v ? (v > HALF_MAX ? HALF_MAX : v < -HALF_MAX ? -HALF_MAX : v) : 0;
+}
+
+/** float32 bits of 65504, half's largest finite value */
+const HALF_MAX_BITS = 0x477fe000;
+/** 2^-14, the smallest normal half: below it, halves are subnormal */
+const HALF_NORMAL_BITS = 113 << 23;
+
+/**
+ * One channel of one line as halves, straight from the floats' bits (round to nearest even, as
+ * toHalf; F. Giesen's bit method for normal values): never NaN or infinity for a compositor (the
+ * PNG quantiser clips the same way): NaN is 0, and values beyond half's range its largest finite
+ * value. Zeros are left as the fresh array has them (most of an element layer).
+ */
+function halfLine(out: Uint16Array, o: number, src: Float32Array, i: number, width: number): void {
+  const bits = new Uint32Array(src.buffer, src.byteOffset, src.length);
+  for (let x = 0; x < width; x++, i += 4) {
+    const u = bits[i];
+    if (u === 0) continue;
+    const sign = (u >>> 16) & 0x8000;
+    const a = u & 0x7fffffff;
+    let h: number;
+    if (a > 0x7f800000) h = 0; // NaN
+    else if (a >= HALF_MAX_BITS) h = sign | 0x7bff; // at or beyond the largest finite half
+    else if (a < HALF_NORMAL_BITS) h = toHalf(src[i]); // subnormal or zero (rare): the slow path
+    else h = sign | (((a + 0xc8000fff + ((a >>> 13) & 1)) >>> 13) & 0x7fff);
+    if (h !== 0) out[o + x] = h;
+  }
+}
+
+function floatLine(out: Float32Array, o: number, src: Float32Array, i: number, width: number): void {
+  for (let x = 0; x < width; x++, i += 4) {
+    const v = src[i];
+    out[o + x] = v === v ? (Number.isFinite(v) ? v : v > 0 ? 3.4028234663852886e38 : -3.4028234663852886e38) : 0;
+  }
 }
 
 class Writer {
@@ -156,7 +198,12 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
   // samples are laid out through typed arrays, which use the machine's byte order
   if (endianness() !== 'LE') throw new Error('the OpenEXR writer needs a little-endian machine');
   const { width, height } = img;
-  const channels = opts.alpha !== 'none' ? ['A', 'B', 'G', 'R'] : ['B', 'G', 'R'];
+  // every channel: its name, the image it comes from and the component (-1: the derived alpha),
+  // in the file's order (names sorted byte by byte: the default layer's capitals come first)
+  const own = (opts.alpha !== 'none' ? ['A', 'B', 'G', 'R'] : ['B', 'G', 'R']).map((c) => ({ name: c, data: img.data, off: { A: -1, B: 2, G: 1, R: 0 }[c as 'A' | 'B' | 'G' | 'R'] }));
+  const extra = (opts.layers ?? []).flatMap((l) => (['B', 'G', 'R'] as const).map((c) => ({ name: `${l.name}.${c}`, data: l.img.data, off: { B: 2, G: 1, R: 0 }[c] })));
+  const sources = [...own, ...extra].sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
+  const channels = sources.map((c) => c.name);
   const zeroAlpha = opts.alpha === 'zero';
   const size = opts.type === 'half' ? 2 : 4;
   const w = new Writer();
@@ -195,9 +242,6 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
   const per = LINES_PER_CHUNK[opts.compression];
   const count = Math.ceil(height / per);
   const blocks: Buffer[] = [];
-  const src = img.data;
-  // channel order in the file (alphabetical): A (when present), B, G, R -> source offsets
-  const offsets = channels.map((c) => ({ A: -1, B: 2, G: 1, R: 0 })[c as 'A' | 'B' | 'G' | 'R']);
   const nc = channels.length;
   for (let c = 0; c < count; c++) {
     const y0 = c * per;
@@ -209,15 +253,16 @@ export function encodeExr(img: FloatImage, opts: ExrOptions): Buffer {
     for (let y = y0; y < y0 + lines; y++) {
       const row = y * width * 4;
       for (let k = 0; k < nc; k++) {
-        const off = offsets[k];
-        for (let x = 0; x < width; x++) {
-          const i = row + x * 4;
-          const v = off < 0 ? (zeroAlpha ? 0 : passAlpha(src[i], src[i + 1], src[i + 2])) : src[i + off];
-          // never hand a compositor NaN or infinity (the PNG quantiser clips the same way): NaN is
-          // 0, and half's range ends at its largest finite value
-          const w = v === v ? v : 0;
-          words[o++] = size === 2 ? toHalf(w > HALF_MAX ? HALF_MAX : w < -HALF_MAX ? -HALF_MAX : w) : Number.isFinite(w) ? w : w > 0 ? 3.4028234663852886e38 : -3.4028234663852886e38;
+        const { off, data: src } = sources[k];
+        if (off < 0) {
+          // the alpha: 0 (emission), or derived from the pass
+          if (!zeroAlpha) for (let x = 0; x < width; x++) words[o + x] = size === 2 ? toHalf(clampHalf(passAlpha(src[row + x * 4], src[row + x * 4 + 1], src[row + x * 4 + 2]))) : passAlpha(src[row + x * 4], src[row + x * 4 + 1], src[row + x * 4 + 2]);
+        } else if (size === 2) {
+          halfLine(words as Uint16Array, o, src, row + off, width);
+        } else {
+          floatLine(words as Float32Array, o, src, row + off, width);
         }
+        o += width;
       }
     }
     const raw = Buffer.from(words.buffer, words.byteOffset, words.byteLength);

@@ -8,6 +8,7 @@ import { reduceFrame, type FlashCells } from '../safety/flash.js';
 import { FloatImage } from '../raster/image.js';
 import type { ResolvedOutput, ResolvedShot } from '../shot/types.js';
 import { renderFrame } from './render-frame.js';
+import { renderLayers } from './passes.js';
 
 export interface FrameJob {
   frame: number;
@@ -46,9 +47,10 @@ export function prepareThread(width: number, height: number, output: ResolvedOut
 
 export function runFrameJob(shot: ResolvedShot, job: FrameJob): FrameDone {
   const start = performance.now();
-  const img = renderFrame(shot, job.frame, undefined, undefined, scratch);
+  const layered = shot.output.passes === 'layers' ? renderLayers(shot, job.frame, scratch) : undefined;
+  const img = layered ? layered.combined : renderFrame(shot, job.frame, undefined, undefined, scratch);
   scratch = img;
-  const png = encodeOutput(img, shot.output, shot.frame.pixelAspect, { frame: shot.frame, n: job.frame });
+  const png = encodeOutput(img, shot.output, shot.frame.pixelAspect, { frame: shot.frame, n: job.frame }, layered?.layers);
   writeFileAtomic(job.file, png);
   const cells = reduceFrame(img.width, img.height, img.data, 4);
   return { frame: job.frame, file: job.file, bytes: png.length, sha256: sha256(png), ms: performance.now() - start, cells };

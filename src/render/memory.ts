@@ -10,6 +10,7 @@ import { freemem } from 'node:os';
 import { ExitCode, StraylightError } from '../errors.js';
 import { MATTE_CACHE_BYTES } from '../io/matte-provider.js';
 import type { ResolvedShot } from '../shot/types.js';
+import { activeElements } from './passes.js';
 
 /** A thread's own cost (V8 isolate, loaded modules, small buffers), bytes. */
 const THREAD_BYTES = 64 * 2 ** 20;
@@ -35,6 +36,8 @@ export function workerBytes(shot: ResolvedShot): number {
   // half or float lines and their compressed copy
   const o = shot.output;
   perPx += o.format === 'exr' ? (o.exr.type === 'float' ? 2 : 1) * 8 * 2 : o.format === 'png16' ? 8 * 2 : 4 * 2;
+  // layers: each element's float frame beside the combined one, and its lines in the encoder
+  if (o.passes === 'layers') perPx += activeElements(shot).length * (16 + (o.exr.type === 'float' ? 2 : 1) * 6 * 2);
   // ghost layers at 1/2, 1/4 and 1/8 resolution, RGB float
   if (shot.lens && shot.ghosts.enabled) perPx += 12 * (1 / 4 + 1 / 16 + 1 / 64);
   // the dust texture, one float a pixel

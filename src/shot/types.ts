@@ -178,8 +178,9 @@ export interface ResolvedOutput {
   format: OutputFormat;
   transfer: Transfer;
   alpha: AlphaMode;
-  /** one combined pass, or one sequence per element (x.glow.####.png, ...) for balancing later */
-  passes: 'combined' | 'separate';
+  /** one combined pass, one sequence per element (x.glow.####.png, ...) for balancing later, or
+   * one OpenEXR a frame holding the combined image and each element as a layer (glow.R, ...) */
+  passes: 'combined' | 'separate' | 'layers';
   /** OpenEXR: pixel type and compression (format exr) */
   exr: { type: 'half' | 'float'; compression: 'none' | 'zips' | 'zip' };
   /** the primaries and white frames are written in (scene-linear; anything but rec709 needs OpenEXR) */

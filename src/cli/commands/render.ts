@@ -194,6 +194,7 @@ function withOutputOptions(shot: ResolvedShot, opts: { out?: string; format?: Ou
   const format = opts.format ?? (ext === '.exr' ? 'exr' : ext === '.png' && o.format === 'exr' ? 'png16' : o.format);
   const alpha = opts.alpha ?? o.alpha;
   if (alpha === 'emission' && format !== 'exr') throw new UsageError('--alpha emission needs the exr format (PNG stores straight alpha, so light under a zero alpha would be lost)');
+  if (format !== 'exr' && o.passes === 'layers') throw new UsageError('the shot writes layered OpenEXR frames; PNG has no layers: keep the exr format (or write passes: separate)');
   if (format !== 'exr' && o.colourSpace !== 'rec709') throw new UsageError(`the shot writes ${o.colourSpace}; PNG frames are display-referred sRGB (Rec.709 primaries): keep the exr format`);
   if (format === o.format && alpha === o.alpha) return shot;
   const transfer = format === 'exr' ? 'linear' : o.transfer;

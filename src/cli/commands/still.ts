@@ -6,6 +6,7 @@ import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadShot } from '../../io/load-shot.js';
 import { encodeOutput } from '../../io/encode-frame.js';
 import { renderFrame } from '../../render/render-frame.js';
+import { renderLayers } from '../../render/passes.js';
 import type { CommandContext } from '../context.js';
 import { Option } from 'commander';
 import { fraction, integer, parseFrameRange, QUALITIES, requireExtension } from '../options.js';
@@ -32,7 +33,9 @@ export function registerStill(program: Command, { io }: CommandContext): void {
       // the file's extension picks the format; the shot's other output settings apply
       const o = shot.output;
       const asked = ext === '.exr' ? { ...o, format: 'exr' as const } : o.format === 'exr' ? { ...o, format: 'png16' as const, transfer: 'linear' as const } : o;
-      const bytes = encodeOutput(renderFrame(shot, opts.frame), asked, shot.frame.pixelAspect, { frame: shot.frame, n: opts.frame });
+      // a layered shot's still, as OpenEXR, has its layers too
+      const layered = asked.format === 'exr' && asked.passes === 'layers' ? renderLayers(shot, opts.frame) : undefined;
+      const bytes = encodeOutput(layered?.combined ?? renderFrame(shot, opts.frame), asked, shot.frame.pixelAspect, { frame: shot.frame, n: opts.frame }, layered?.layers);
       writeOutputFile(out, bytes);
       const { widthPx, heightPx } = shot.frame;
       io.stdout(`${out}: frame ${opts.frame}, ${widthPx}x${heightPx} ${asked.format === 'exr' ? `OpenEXR ${asked.exr.type}` : `${asked.format === 'png8' ? '8' : '16'}-bit PNG, ${asked.transfer}`}\n`);

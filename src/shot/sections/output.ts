@@ -33,7 +33,8 @@ export function resolveOutput(ctx: ResolveContext, f: Field): ResolvedOutput | u
   const alpha = af ? af.oneOf(['none', 'premultiplied', 'emission'] as const) : 'none';
   if (alpha === 'emission' && format !== 'exr') af!.error('alpha: emission needs format: exr (PNG stores straight alpha, so light under a zero alpha would be lost)');
   const pf = m.get('passes');
-  const passes = pf ? pf.oneOf(['combined', 'separate'] as const) : 'combined';
+  const passes = pf ? pf.oneOf(['combined', 'separate', 'layers'] as const) : 'combined';
+  if (passes === 'layers' && format && format !== 'exr') pf!.error('layers are OpenEXR layers: give format: exr, or passes: separate for one PNG sequence per element');
   const csf = m.get('colour_space');
   const colourSpace = csf ? csf.oneOf(SPACE_NAMES) : 'rec709';
   if (colourSpace && colourSpace !== 'rec709' && format && format !== 'exr') {
@@ -49,6 +50,7 @@ export function resolveOutput(ctx: ResolveContext, f: Field): ResolvedOutput | u
   }
   if (!template || !format || !transfer || !alpha || !passes || !exr || !colourSpace) return undefined;
   if (colourSpace !== 'rec709' && format !== 'exr') return undefined;
+  if (passes === 'layers' && format !== 'exr') return undefined;
   if (format === 'exr' && transfer === 'srgb') return undefined;
   if (alpha === 'emission' && format !== 'exr') return undefined;
   return { template, format, transfer, alpha, passes, exr, colourSpace };
