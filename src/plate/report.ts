@@ -55,7 +55,7 @@ export function plateLights(tracks: Track[], lift: number, clip: number): PlateL
 export function trackCsv(light: PlateLight): string {
   const hidden = light.rows.filter((r) => r.predicted).map((r) => r.frame);
   const lines = [`# ${light.name}, tracked from the plate by straylight lights`];
-  if (hidden.length) lines.push(`# predicted (not seen, interpolated): frames ${spans(hidden)}`);
+  if (hidden.length) lines.push(`# predicted (hidden wholly or in part; placed between whole sightings): frames ${spans(hidden)}`);
   lines.push('frame,x,y,intensity');
   for (const r of light.rows) lines.push(`${r.frame},${r.x.toFixed(3)},${r.y.toFixed(3)},${r.stops.toFixed(3)}`);
   return lines.join('\n') + '\n';

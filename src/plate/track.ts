@@ -2,7 +2,10 @@
 // place plus its velocity, per frame of the gap), and the closest blob within the gate is taken,
 // nearest pairs first. A track that finds nothing keeps its identity for up to maxGap frames;
 // when its light comes back, the frames between are filled by linear interpolation and flagged
-// as predicted. A track not seen again ends at its last sighting.
+// as predicted. A track not seen again ends at its last sighting. A sighting much smaller than the
+// light's usual size is the light partly hidden, and its centroid leans towards the visible part:
+// such frames are placed by the same interpolation between the whole sightings either side, and
+// flagged predicted too (the blob is kept: the light was seen).
 
 import type { Blob } from './detect.js';
 
@@ -10,7 +13,7 @@ export interface TrackPoint {
   frame: number;
   x: number;
   y: number;
-  /** a frame the light was not seen on (behind something), its place interpolated */
+  /** a frame the light was not seen whole on (behind something), its place interpolated */
   predicted: boolean;
   /** the blob seen (absent where predicted) */
   blob?: Blob;
@@ -28,6 +31,35 @@ export interface TrackOptions {
   maxGap: number;
   /** tracks seen on fewer frames than this are dropped */
   minFrames: number;
+}
+
+/** A sighting under this share of the light's median area is taken as the light partly hidden. */
+export const PARTIAL_AREA = 0.85;
+
+/** Partly hidden sightings placed between the whole ones either side (see the head of the file). */
+function placePartial(track: Track): Track {
+  const seen = track.points.filter((p) => p.blob).map((p) => p.blob!.area).sort((a, b) => a - b);
+  const median = seen[Math.floor(seen.length / 2)];
+  const whole = (p: TrackPoint) => p.blob !== undefined && p.blob.area >= PARTIAL_AREA * median;
+  const points = track.points.map((p, k) => {
+    if (whole(p) || (p.predicted && !p.blob)) return p;
+    const before = track.points.slice(0, k).reverse().find(whole);
+    const after = track.points.slice(k + 1).find(whole);
+    if (!before || !after) return p;
+    const s = (p.frame - before.frame) / (after.frame - before.frame);
+    return { ...p, x: before.x + (after.x - before.x) * s, y: before.y + (after.y - before.y) * s, predicted: true };
+  });
+  // the hidden frames between partial sightings follow the same line
+  return { ...track, points: points.map((p, k) => (p.blob ? p : placeHidden(points, k))) };
+}
+
+function placeHidden(points: TrackPoint[], k: number): TrackPoint {
+  const p = points[k];
+  const before = points.slice(0, k).reverse().find((q) => q.blob && !q.predicted);
+  const after = points.slice(k + 1).find((q) => q.blob && !q.predicted);
+  if (!before || !after) return p;
+  const s = (p.frame - before.frame) / (after.frame - before.frame);
+  return { ...p, x: before.x + (after.x - before.x) * s, y: before.y + (after.y - before.y) * s };
 }
 
 /** frames: the shot's frame numbers in order, and each frame's blobs. */
@@ -87,7 +119,7 @@ export function linkTracks(frames: { frame: number; blobs: Blob[] }[], opts: Tra
   }
   done.push(...live.map((l) => l.track));
   return done
-    .filter((t) => t.points.filter((p) => !p.predicted).length >= opts.minFrames)
+    .filter((t) => t.points.filter((p) => p.blob).length >= opts.minFrames)
     .sort((a, b) => a.id - b.id)
-    .map((t, i) => ({ id: i, points: t.points }));
+    .map((t, i) => placePartial({ id: i, points: t.points }));
 }

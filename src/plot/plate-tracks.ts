@@ -63,7 +63,7 @@ export function plateTracksSvg(c: PlateTracksChart): string {
   const ly = top + 10 + c.tracks.length * 40;
   parts.push(
     el('line', { x1: left + pw + 24, x2: left + pw + 54, y1: ly, y2: ly, stroke: '#555555', 'stroke-width': 2, 'stroke-dasharray': '5 4' }),
-    text(left + pw + 62, ly + 4, 'predicted (hidden)', { fill: '#555555', 'font-size': 11 }),
+    text(left + pw + 62, ly + 4, 'predicted (hidden, wholly or in part)', { fill: '#555555', 'font-size': 11 }),
     el('circle', { cx: left + pw + 39, cy: ly + 26, r: 7, fill: 'none', stroke: '#555555', 'stroke-width': 2 }),
     text(left + pw + 62, ly + 30, `on the frame shown (${c.frame})`, { fill: '#555555', 'font-size': 11 }),
   );

@@ -198,7 +198,7 @@ describe('straylight lights', () => {
     const y = 0.2126 * 1.2 + 0.7152 * 0.9 + 0.0722 * 0.6;
     summary.lights[0].colour.forEach((c, k) => expect(c).toBeCloseTo([1.2, 0.9, 0.6][k] / y, 1));
     const csv = readFileSync(path.join(dir, 'lamp.light-1.csv'), 'utf8');
-    expect(csv).toMatch(/^# predicted \(not seen, interpolated\): frames 106-107$/m);
+    expect(csv).toMatch(/^# predicted \(hidden wholly or in part; placed between whole sightings\): frames 106-107$/m);
     const rows = csv.split('\n').filter((l) => /^\d/.test(l)).map((l) => l.split(',').map(Number));
     expect(rows).toHaveLength(12);
     for (const [f, x, yy] of rows) expect(Math.hypot(x - (30 + 6 * (f - 101)), yy - 40)).toBeLessThan(0.05);
