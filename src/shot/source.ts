@@ -91,7 +91,12 @@ export function parseYamlSource(
   const doc = parseDocument(text, { lineCounter: lines, uniqueKeys: true, prettyErrors: false });
   const ctx: SourceContext = { file, lines, doc, diagnostics: [] };
   const seen = new Set<string>();
-  for (const e of doc.errors) {
+  // the first slip only: after it the parser is lost and reports the rest of the line (and the
+  // lines after) as a cascade of errors of its own; a key given twice stands alone, and is kept
+  const errors = [...doc.errors].sort((x, y) => (x.pos?.[0] ?? 0) - (y.pos?.[0] ?? 0));
+  const first = errors.find((e) => e.code !== 'DUPLICATE_KEY');
+  for (const e of errors) {
+    if (e !== first && e.code !== 'DUPLICATE_KEY') continue;
     // one message a place: the parser often reports one slip several ways at the same spot
     const pos = e.pos ? lines.linePos(e.pos[0]) : { line: 1, col: 1 };
     if (seen.has(`${pos.line}:${pos.col}`)) continue;

@@ -137,6 +137,9 @@ describe('shot validation', () => {
     ['broken YAML syntax in our words, where it is', 'a: [1, 2\n', [
       'bad.yaml:2:1: YAML syntax: the indentation here does not line up with the lines around it (or a [ ] or { } before it is not closed)',
     ]],
+    ['a stray bracket mid-line: its first slip only, not the cascade after it', 'version: 1\nlights:\n  - { name: a, position: [[{ frame: 1, x: 4, y: 3 }]][0], intensity: 1 }\n  - { name: b, position: [1, 2], intensity: 0 }\n', [
+      'bad.yaml:3:54: YAML syntax: unexpected text here (a missing colon or comma, or a stray character?)',
+    ]],
     ['a tab used for indentation, at its line', 'version: 1\nframe:\n\twidth: 3\n', [
       'bad.yaml:3:1: YAML syntax: a tab is used for indentation; indent with spaces',
     ]],
