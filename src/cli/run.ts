@@ -12,6 +12,7 @@ import { registerCheck } from './commands/check.js';
 import { registerFarm } from './commands/farm.js';
 import { registerFlashes } from './commands/flashes.js';
 import { registerLens } from './commands/lens.js';
+import { registerImportLens } from './commands/import-lens.js';
 import { registerLights } from './commands/lights.js';
 import { registerRender } from './commands/render.js';
 import { registerSheet } from './commands/sheet.js';
@@ -25,6 +26,7 @@ export type { CliIO } from './context.js';
 const COMMANDS: ((program: Command, ctx: CommandContext) => void)[] = [
   registerRender,
   registerLights,
+  registerImportLens,
   registerBatch,
   registerFarm,
   registerVisibility,
