@@ -55,7 +55,11 @@ export class StraylightError extends Error {
 
 /** An invalid shot (or track, or matte): every problem found, in file order. */
 export class ShotError extends StraylightError {
-  constructor(readonly diagnostics: Diagnostic[]) {
+  /** `outcome`: what did not happen, for the summary line (a render by default) */
+  constructor(
+    readonly diagnostics: Diagnostic[],
+    readonly outcome = 'nothing was rendered',
+  ) {
     super(diagnostics.map(formatDiagnostic).join('\n'), ExitCode.badInput);
   }
 }

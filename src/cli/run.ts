@@ -4,7 +4,7 @@
 // line in COMMANDS below.
 
 import { Command, CommanderError } from 'commander';
-import { ExitCode, StraylightError } from '../errors.js';
+import { ExitCode, ShotError, StraylightError } from '../errors.js';
 import { VERSION } from '../version.js';
 import type { CliIO, CommandContext } from './context.js';
 import { registerBatch } from './commands/batch.js';
@@ -66,9 +66,9 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
     }
     if (e instanceof StraylightError) {
       io.stderr(`${e.message}\n`);
-      if (e.exitCode === ExitCode.badInput && 'diagnostics' in e) {
-        const count = (e as { diagnostics: unknown[] }).diagnostics.length;
-        io.stderr(`straylight: ${count} problem${count === 1 ? '' : 's'} found; nothing was rendered\n`);
+      if (e instanceof ShotError) {
+        const count = e.diagnostics.length;
+        io.stderr(`straylight: ${count} problem${count === 1 ? '' : 's'} found; ${e.outcome}\n`);
       }
       return e.exitCode;
     }

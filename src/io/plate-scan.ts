@@ -18,15 +18,17 @@ export interface PlateScan {
 }
 
 export function scanPlate(template: string, shownTemplate: string, opts: Omit<DetectOptions, 'clip'>): PlateScan {
+  // a frame's file as the user named the plate (its folder as given)
+  const shownFrame = (f: number) => path.join(path.dirname(shownTemplate), path.basename(expandFramePath(template, f)));
   const frames = framesOnDisk(template);
-  if (frames.length === 0) throw new InputError(`${shownTemplate}: no plate frames on disk match this template`);
+  if (frames.length === 0) throw new InputError(`${shownTemplate}: no plate frames on disk match this template; nothing was written`);
   const missing: number[] = [];
   for (let f = frames[0], i = 0; f <= frames[frames.length - 1]; f++) {
     if (frames[i] === f) i++;
     else missing.push(f);
   }
   if (missing.length) {
-    throw new InputError(`${shownTemplate}: frame${missing.length > 1 ? 's' : ''} ${missing.slice(0, 5).join(', ')}${missing.length > 5 ? ` and ${missing.length - 5} more` : ''} missing between ${frames[0]} and ${frames[frames.length - 1]}; a track needs every frame`);
+    throw new InputError(`${shownTemplate}: frame${missing.length > 1 ? 's' : ''} ${missing.slice(0, 5).join(', ')}${missing.length > 5 ? ` and ${missing.length - 5} more` : ''} missing between ${frames[0]} and ${frames[frames.length - 1]}; a track needs every frame; nothing was written`);
   }
   let size: { width: number; height: number } | undefined;
   for (const f of frames) {
@@ -35,11 +37,11 @@ export function scanPlate(template: string, shownTemplate: string, opts: Omit<De
     try {
       s = matteFrameSize(file, undefined, 'plate');
     } catch (e) {
-      throw new InputError(`${path.basename(file)}: ${(e as Error).message}`);
+      throw new InputError(`${shownFrame(f)}: ${(e as Error).message}; nothing was written`);
     }
     if (!size) size = s;
     else if (s.width !== size.width || s.height !== size.height) {
-      throw new InputError(`${path.basename(file)} is ${s.width}x${s.height} px, the plate's first frame ${size.width}x${size.height}: a plate has one size`);
+      throw new InputError(`${shownFrame(f)} is ${s.width}x${s.height} px, the plate's first frame ${size.width}x${size.height}: a plate has one size; nothing was written`);
     }
   }
   const displayReferred = path.extname(template).toLowerCase() === '.png';
@@ -51,7 +53,7 @@ export function scanPlate(template: string, shownTemplate: string, opts: Omit<De
     try {
       img = readFrameLinear(file);
     } catch (e) {
-      throw new InputError(`${path.basename(file)}: ${e instanceof InputError ? e.message.replace(`${file}: `, '') : 'cannot be read (damaged or truncated)'}`);
+      throw new InputError(`${shownFrame(f)}: ${e instanceof InputError ? e.message.replace(`${file}: `, '') : 'cannot be read (damaged or truncated)'}; nothing was written`);
     }
     const y = luminance(img);
     const blobs = detectBlobs(img, detect, y);

@@ -69,6 +69,7 @@ describe('straylight import-lens', () => {
       const r = await cli(['import-lens', table, '-o', path.join(dir, 'x.yaml')]);
       expect(r.code).toBe(3);
       expect(r.stderr.split('\n')[0]).toMatch(message);
+      expect(r.stderr).toMatch(/straylight: 1 problem found; nothing was written\n$/);
     }
   });
 });

@@ -215,8 +215,8 @@ describe('straylight lights', () => {
   it('bad plates: one line, exit 3, nothing written', async () => {
     const cases: [string, (dir: string) => string, RegExp][] = [
       ['no light above the threshold', (dir) => plateSequence(dir, { level: 0.3 }), /: no light reaches the threshold \(luminance 0\.95\) on any frame; lower --threshold, or give --relative; nothing was written$/],
-      ['frames of two sizes', (dir) => plateSequence(dir, { size: (f) => (f === 105 ? [162, 90] : [160, 90]) }), /^p\.105\.png is 162x90 px, the plate's first frame 160x90: a plate has one size$/],
-      ['a frame missing in the middle', (dir) => plateSequence(dir, { frames: [101, 102, 103, 105, 106] }), /: frame 104 missing between 101 and 106; a track needs every frame$/],
+      ['frames of two sizes', (dir) => plateSequence(dir, { size: (f) => (f === 105 ? [162, 90] : [160, 90]) }), /\/plate\/p\.105\.png is 162x90 px, the plate's first frame 160x90: a plate has one size; nothing was written$/],
+      ['a frame missing in the middle', (dir) => plateSequence(dir, { frames: [101, 102, 103, 105, 106] }), /: frame 104 missing between 101 and 106; a track needs every frame; nothing was written$/],
     ];
     for (const [, make, message] of cases) {
       const dir = tempDir();

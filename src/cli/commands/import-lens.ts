@@ -37,13 +37,13 @@ export function registerImportLens(program: Command, { io }: CommandContext): vo
       }
       const diagnostics: Diagnostic[] = [];
       const rows = parsePrescription(text, table, diagnostics);
-      if (!rows) throw new ShotError(diagnostics);
+      if (!rows) throw new ShotError(diagnostics, 'nothing was written');
       const name = opts.name ?? path.basename(table).replace(/\.[^.]*$/, '');
       if (!/^[A-Za-z0-9][A-Za-z0-9._-]*$/.test(name)) throw new UsageError(`--name: expected letters, digits, ".", "_" or "-", found "${name}"`);
       const source = path.basename(table);
       const draft = prescriptionLensText(rows, { name, source, sensorWidthMm: opts.sensorWidth, fNumberMin: opts.fNumberMin ?? 2 });
       const parsed = parseLensText(draft, opts.out, name);
-      if (!parsed.model) throw new ShotError(parsed.diagnostics.map((d) => ({ ...d, loc: { file: table, line: 1, col: 1 } })));
+      if (!parsed.model) throw new ShotError(parsed.diagnostics.map((d) => ({ ...d, loc: { file: table, line: 1, col: 1 } })), 'nothing was written');
       const f = focalLength(parsed.model);
       if (!(f > 0) || !Number.isFinite(f)) throw new InputError(`${table}: the lens has no positive focal length (paraxial f = ${f.toFixed(3)} mm); straylight draws flares of lenses that form an image`);
       let fNumber = opts.fNumberMin;
