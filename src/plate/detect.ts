@@ -57,18 +57,20 @@ export function luminance(frame: PlateFrame): Float32Array {
 
 /** The frame's robust maximum: the luminance of its (ROBUST_SKIP + 1)-th brightest pixel. */
 export function robustMax(y: Float32Array): number {
-  const top: number[] = [];
+  // the ROBUST_SKIP + 1 brightest values so far, ascending: a new one displaces the smallest
+  const k = ROBUST_SKIP + 1;
+  const top = new Float64Array(k).fill(-Infinity);
   for (let i = 0; i < y.length; i++) {
     const v = y[i];
-    if (top.length <= ROBUST_SKIP) {
-      top.push(v);
-      top.sort((a, b) => a - b);
-    } else if (v > top[0]) {
-      top[0] = v;
-      top.sort((a, b) => a - b);
+    if (!(v > top[0])) continue;
+    let j = 0;
+    while (j + 1 < k && top[j + 1] < v) {
+      top[j] = top[j + 1];
+      j++;
     }
+    top[j] = v;
   }
-  return top[0] ?? 0;
+  return Number.isFinite(top[0]) ? top[0] : 0;
 }
 
 export function thresholdOf(y: Float32Array, opts: DetectOptions['threshold']): number {
