@@ -8,6 +8,7 @@ import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { seeded } from '../../src/elements/dust.js';
 import { encodePng } from '../../src/io/png.js';
 import { detectBlobs, luminance, type DetectOptions } from '../../src/plate/detect.js';
 import { linkTracks } from '../../src/plate/track.js';
@@ -15,18 +16,6 @@ import { FloatImage } from '../../src/raster/image.js';
 import { readFrameLinear } from '../../src/io/read-frame.js';
 import { ExitCode } from '../../src/errors.js';
 import { cli, tempDir } from '../helpers.js';
-
-/** A small deterministic generator (mulberry32) for the noise. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 interface Light {
   x: number;
@@ -40,7 +29,7 @@ interface Light {
 /** A plate frame: a dark background with noise and the lights (disks drawn with exact coverage, 8x8 supersampled). */
 function plate(w: number, h: number, lights: Light[], seed: number, noise = 0.01, bg = 0.02): FloatImage {
   const img = new FloatImage(w, h);
-  const r = rng(seed);
+  const r = seeded(seed); // the noise: the project's seeded generator (mulberry32)
   for (let y = 0; y < h; y++) {
     for (let x = 0; x < w; x++) {
       let v = [bg, bg, bg];
