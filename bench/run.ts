@@ -350,5 +350,11 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   rmSync(dir, { recursive: true, force: true });
 }
 
+// --- the look-dev preview (bench/preview.ts)
+{
+  const { previewRows } = await import('./preview.js');
+  rows.push(...(await previewRows()));
+}
+
 console.log(`straylight bench (median of ${RUNS} runs, Node ${process.version})`);
 for (const [name, v] of rows) console.log(`  ${name.padEnd(58)} ${v}`);

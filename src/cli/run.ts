@@ -14,6 +14,7 @@ import { registerFlashes } from './commands/flashes.js';
 import { registerLens } from './commands/lens.js';
 import { registerImportLens } from './commands/import-lens.js';
 import { registerLights } from './commands/lights.js';
+import { registerPreview } from './commands/preview.js';
 import { registerRender } from './commands/render.js';
 import { registerSheet } from './commands/sheet.js';
 import { registerStill } from './commands/still.js';
@@ -26,6 +27,7 @@ export type { CliIO } from './context.js';
 const COMMANDS: ((program: Command, ctx: CommandContext) => void)[] = [
   registerRender,
   registerLights,
+  registerPreview,
   registerImportLens,
   registerBatch,
   registerFarm,

@@ -22,9 +22,12 @@ export function readTextFile(file: string): string {
 
 /**
  * Read, check and resolve a shot file, with the glTF scene its camera names (read first: reading
- * a scene is asynchronous, resolving is not).
+ * a scene is asynchronous, resolving is not). `onRead` hears every file the shot reads (the shot,
+ * its tracks, lens file and scene), also when it is refused: what a watcher should watch.
  */
-export async function loadShot(file: string): Promise<ResolvedShot> {
+export async function loadShot(file: string, opts: { onRead?: (absolutePath: string) => void } = {}): Promise<ResolvedShot> {
+  const heard = opts.onRead ?? (() => {});
+  heard(path.resolve(file));
   let text: string;
   try {
     text = readTextFile(file);
@@ -35,15 +38,19 @@ export async function loadShot(file: string): Promise<ResolvedShot> {
     throw new InputError(`${file}: not a text file (a YAML shot file was expected)`);
   }
   // messages name the shot as the user wrote it
-  const scenes = await preloadScenes(text, file);
-  const shot = resolveShot(text, file, { readText: readTextFile, presetNames, presetPath, scene: (abs) => scenes.get(abs) });
+  const scenes = await preloadScenes(text, file, heard);
+  const readText = (abs: string) => {
+    heard(abs);
+    return readTextFile(abs);
+  };
+  const shot = resolveShot(text, file, { readText, presetNames, presetPath, scene: (abs) => scenes.get(abs) });
   const problems = checkMattes(shot);
   if (problems.length) throw new ShotError(problems);
   return shot;
 }
 
 /** The scene the shot's camera names, read (or the reason it cannot be), by absolute path. */
-async function preloadScenes(text: string, file: string): Promise<Map<string, SceneResult>> {
+async function preloadScenes(text: string, file: string, heard: (abs: string) => void): Promise<Map<string, SceneResult>> {
   const out = new Map<string, SceneResult>();
   let doc: unknown;
   try {
@@ -54,6 +61,7 @@ async function preloadScenes(text: string, file: string): Promise<Map<string, Sc
   const cam = (doc as { camera?: { scene?: unknown; animation?: unknown } } | null)?.camera;
   if (!cam || typeof cam !== 'object' || typeof cam.scene !== 'string' || !/\.(glb|gltf)$/i.test(cam.scene)) return out;
   const abs = path.resolve(path.dirname(path.resolve(file)), cam.scene);
+  heard(abs);
   out.set(abs, await readScene(abs, typeof cam.animation === 'string' ? cam.animation : undefined));
   return out;
 }

@@ -39,6 +39,19 @@ export function adoptShotAssets(shot: ResolvedShot, assets: ShotAssets): void {
   cache.set(shot, assets);
 }
 
+/**
+ * What shotAssets builds from, as a string: two shots with the same key can share their assets
+ * (the preview keeps them across reloads of a shot whose lens, iris and dust did not change).
+ */
+export function shotAssetsKey(shot: ResolvedShot): string {
+  const uses = (on: (f: LightFlare) => boolean) => on(shot) || shot.lights.some((l) => l.flare && on(l.flare));
+  return JSON.stringify([
+    shot.lens && shot.ghosts.enabled ? [shot.lens.model, shot.ghosts.quality, shot.ghosts.threshold] : null,
+    uses((f) => f.starburst.fraction > 0) ? (shot.lens?.model.iris ?? DEFAULT_IRIS) : null,
+    uses((f) => f.dust.fraction > 0) ? [shot.frame.widthPx, shot.frame.heightPx, shot.dust.seed, shot.dust.density] : null,
+  ]);
+}
+
 export function shotAssets(shot: ResolvedShot): ShotAssets {
   let a = cache.get(shot);
   if (!a) {
@@ -201,7 +214,7 @@ export function renderFrame(shot: ResolvedShot, frame: number, stats?: GhostStat
       if (assets.lens && gGhosts > 0) {
         // the ghosts' rays are traced through the hood: they take the light without its field share
         const ghostFlux = s.field === 1 ? flux : (flux.map((c) => c / s.field) as [number, number, number]);
-        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux: ghostFlux }, { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths }, stats);
+        addGhosts(img, assets.lens, { widthPx, heightPx, pixelAspect, opticalCentre }, { xPx: s.xPx, yPx: s.yPx, flux: ghostFlux }, { fNumber, gain: ls.ghosts.gain * gGhosts, quality: shot.ghosts.quality, ...ghostPaths, ...(shot.ghosts.share ? { share: shot.ghosts.share } : {}) }, stats);
       }
       if (assets.starburst && gStar > 0) {
         const k = ls.starburst.fraction * gStar;

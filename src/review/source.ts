@@ -8,7 +8,10 @@ import { InputError, UsageError } from '../errors.js';
 import { expandFramePath, parseFrameTemplate } from '../format/frame-path.js';
 import { loadShot } from '../io/load-shot.js';
 import { framesOnDisk, readFrameLinear, type LinearFrame } from '../io/read-frame.js';
+import type { GhostQuality } from '../optics/ghost-system.js';
+import { scaleShot, withGhostQuality } from '../render/overrides.js';
 import { outputSequences } from '../render/passes.js';
+import { renderFrame } from '../render/render-frame.js';
 import type { ResolvedShot } from '../shot/types.js';
 import { parseFrameRate, type FrameRate } from '../timeline/frame-rate.js';
 
@@ -29,6 +32,8 @@ export interface SequenceSource {
   timecode?: TimecodeInfo;
   /** the frame's pixel aspect ratio (1 for a bare template) */
   pixelAspect: number;
+  /** frames drawn in memory instead of read from the templates (a quick look at a shot) */
+  draw?: (frame: number) => LinearFrame;
 }
 
 export function timecodeOf(shot: ResolvedShot): TimecodeInfo {
@@ -64,8 +69,33 @@ export async function openSource(arg: string, rate?: string): Promise<SequenceSo
   return { templates: [template], frames, rate: r, pixelAspect: 1 };
 }
 
+/**
+ * A shot's frames drawn in memory with look-dev overrides (`--quality`, `--scale`) instead of read
+ * from its render, which need not exist: every pass summed, as the combined frame.
+ */
+export async function drawnSource(arg: string, overrides: { quality?: GhostQuality; scale?: number }): Promise<{ src: SequenceSource; shot: ResolvedShot }> {
+  if (!/\.ya?ml$/i.test(arg)) throw new UsageError(`--quality and --scale draw a shot's frames: give a shot file, not ${arg}`);
+  const full = await loadShot(arg);
+  const q = overrides.quality ? withGhostQuality(full, overrides.quality) : full;
+  const shot = overrides.scale !== undefined ? scaleShot(q, overrides.scale) : q;
+  const frames: number[] = [];
+  for (let f = shot.frame.first; f <= shot.frame.last; f++) frames.push(f);
+  const draw = (frame: number): LinearFrame => {
+    const img = renderFrame(shot, frame);
+    const rgb = new Float32Array(img.width * img.height * 3);
+    for (let p = 0, i = 0; i < img.data.length; i += 4, p += 3) {
+      rgb[p] = img.data[i];
+      rgb[p + 1] = img.data[i + 1];
+      rgb[p + 2] = img.data[i + 2];
+    }
+    return { width: img.width, height: img.height, rgb };
+  };
+  return { src: { templates: [], frames, rate: shot.frame.rate, timecode: timecodeOf(shot), pixelAspect: shot.frame.pixelAspect, draw }, shot };
+}
+
 /** One frame of the source, passes summed, as linear RGB. */
 export function readSource(src: SequenceSource, frame: number): LinearFrame {
+  if (src.draw) return src.draw(frame);
   const out = readFrameLinear(expandFramePath(src.templates[0], frame));
   for (const t of src.templates.slice(1)) {
     const p = readFrameLinear(expandFramePath(t, frame));

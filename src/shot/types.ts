@@ -154,6 +154,16 @@ export interface GhostSettings {
   paths: Record<string, GhostPathControl>;
   /** when not empty, only these ghosts are drawn */
   solo: string[];
+  /**
+   * never from a shot file: draw only the ranked ghosts whose rank is `index` modulo `count` (the
+   * preview splits one frame's ghosts between threads; the shares add up to the whole)
+   */
+  share?: GhostShare;
+}
+
+export interface GhostShare {
+  index: number;
+  count: number;
 }
 
 export interface GhostPathControl {

@@ -6,6 +6,7 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { PNG } from 'pngjs';
 import { decodeExr } from '../../src/format/exr-read.js';
 import { cli, tempDir } from '../helpers.js';
 
@@ -83,5 +84,35 @@ describe('look-dev overrides', () => {
     const r = await cli(['still', path.join(dir, 'shot.yaml'), '--frame', '1', '--out', path.join(dir, 'a.png'), '--scale', '2']);
     expect(r.code).toBe(2);
     expect(r.stderr).toBe('--scale: expected a fraction of the frame\'s size above 0 and at most 1 (e.g. 0.5), found "2"\n');
+  });
+
+  it('sheet --quality/--scale draws the shot now: without a render, the same tiles the render gives, and the render untouched', async () => {
+    const dir = tempDir();
+    const shot = path.join(dir, 'shot.yaml');
+    writeFileSync(shot, SHOT);
+    // no render yet: a plain sheet is refused, a drawn one is made, and nothing is written to out/
+    expect((await cli(['sheet', shot, '-o', path.join(dir, 'plain.png')])).code).toBe(3);
+    const drawn = await cli(['sheet', shot, '-o', path.join(dir, 'drawn.png'), '--quality', 'medium']);
+    expect(drawn.code).toBe(0);
+    expect(existsSync(path.join(dir, 'out'))).toBe(false);
+    const half = await cli(['sheet', shot, '-o', path.join(dir, 'half.svg'), '--scale', '0.5', '--quality', 'draft']);
+    expect(half.code).toBe(0);
+    expect(half.stdout).toMatch(/2 frames/);
+    expect(readFileSync(path.join(dir, 'half.svg'), 'utf8')).toContain('drawn at draft quality, scale 0.5, not the render');
+    // the render's own sheet (float OpenEXR frames) has the same tiles as the one drawn in memory
+    expect((await cli(['render', shot, '--quiet', '--jobs', '1'])).code).toBe(0);
+    expect((await cli(['sheet', shot, '-o', path.join(dir, 'rendered.png')])).code).toBe(0);
+    const a = PNG.sync.read(readFileSync(path.join(dir, 'drawn.png')));
+    const b = PNG.sync.read(readFileSync(path.join(dir, 'rendered.png')));
+    expect([a.width, a.height]).toEqual([b.width, b.height]);
+    // the title differs (it says the sheet was drawn); the tiles, below the title band, do not
+    const top = 8 + 24;
+    let worst = 0;
+    for (let y = top; y < a.height; y++) for (let x = 0; x < a.width * 4; x++) worst = Math.max(worst, Math.abs(a.data[y * a.width * 4 + x] - b.data[y * a.width * 4 + x]));
+    expect(worst).toBeLessThanOrEqual(1);
+    // a sequence on disk cannot be drawn again
+    const seq = await cli(['sheet', path.join(dir, 'out', 'f.####.exr'), '-o', path.join(dir, 'x.png'), '--scale', '0.5']);
+    expect(seq.code).toBe(2);
+    expect(seq.stderr).toMatch(/--quality and --scale draw a shot's frames: give a shot file/);
   });
 });

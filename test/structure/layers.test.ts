@@ -30,8 +30,9 @@ const LAYER: Record<string, number> = {
   render: 5,
   review: 6,
   farm: 6,
-  cli: 7,
-  index: 8,
+  preview: 7,
+  cli: 8,
+  index: 9,
 };
 
 /** Files allowed past MAX_LINES, each with its reason. */

@@ -51,7 +51,9 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   const faintGrid = system.faintGrid === system.grid ? grid : gridOf(system.faintGrid);
   // the fitting trace is at this wavelength: drawn with the fitting grid, it needs no trace again
   const fitNm = system.samples[centre].nm;
+  const share = settings.share;
   for (let g = 0; g < system.kept; g++) {
+    if (share && g % share.count !== share.index) continue;
     const ghost = system.ranked[g];
     // per-ghost switches, gains and tints from the shot
     let own: readonly [number, number, number] = ONE;

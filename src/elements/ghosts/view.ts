@@ -29,6 +29,8 @@ export interface GhostFrameSettings {
    */
   paths?: ReadonlyMap<string, readonly [number, number, number]>;
   only?: boolean;
+  /** draw only the ghosts of rank index modulo count (see GhostSettings.share) */
+  share?: { index: number; count: number };
 }
 
 export interface GhostStats {
