@@ -9,6 +9,8 @@
 #              where its lights project and renders its depth pass (the exporter needs numpy)
 #   python3-opencv  the reference for finding lights in plates (connected components, moments)
 #   python3-pyopencolorio  the reference for colour-space conversions (OpenColorIO's built-in ACES transforms)
+#   python3-yaml, python3-scipy  the independent ray tracer reads lens files itself (PyYAML); the
+#              starburst's Airy pattern comes from scipy's Bessel function j1
 set -euo pipefail
 need=()
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
@@ -20,6 +22,8 @@ command -v blender >/dev/null 2>&1 || need+=(blender)
 /usr/bin/python3 -c 'import numpy' >/dev/null 2>&1 || need+=(python3-numpy)
 /usr/bin/python3 -c 'import cv2' >/dev/null 2>&1 || need+=(python3-opencv)
 /usr/bin/python3 -c 'import PyOpenColorIO' >/dev/null 2>&1 || need+=(python3-pyopencolorio)
+/usr/bin/python3 -c 'import yaml' >/dev/null 2>&1 || need+=(python3-yaml)
+/usr/bin/python3 -c 'import scipy.special' >/dev/null 2>&1 || need+=(python3-scipy)
 if [ ${#need[@]} -gt 0 ]; then
   sudo=""
   [ "$(id -u)" -eq 0 ] || sudo="sudo"
