@@ -92,7 +92,10 @@ export function lensSvg(lens: LensModel, system: LensSystem, opts: LensDrawing =
   let caption = 'no ghost to draw';
   if (g) {
     const name = `${g.i + 1}-${g.j + 1}`;
-    const colour = hex(g.tint);
+    // the tint, darkened until it shows on the white page (bare glass gives a near-white ghost):
+    // its relative luminance (Rec.709 weights, on the sRGB-coded values) at most 0.55
+    const lum = 0.2126 * g.tint[0] + 0.7152 * g.tint[1] + 0.0722 * g.tint[2];
+    const colour = hex(lum > 0.55 ? g.tint.map((c) => (c * 0.55) / lum) : g.tint);
     const plan = planPath(lens, ghostPath(lens, g), 550, stopR);
     const hit = new RayHit();
     const slope = 0.05;
@@ -116,8 +119,13 @@ export function lensSvg(lens: LensModel, system: LensSystem, opts: LensDrawing =
   const bx = W - M.right - bar * scale - 60;
   const by = H - 18;
   parts.push(el('g', { class: 'scale-bar', 'data-mm': bar }, el('line', { x1: bx, x2: bx + bar * scale, y1: by, y2: by, stroke: '#222222', 'stroke-width': 3 }), text(bx + bar * scale + 8, by + 4, `${bar} mm`, { fill: '#222222', 'font-size': 12 })));
-  parts.push(text(M.left, 30, `${lens.name}: ${lens.note || 'lens'}`, { 'font-size': 17, fill: '#111111' }));
-  parts.push(text(M.left, 52, `f ${system.focalLengthMm.toFixed(2)} mm, f/${lens.fNumberMin} widest (the stop drawn open)`, { 'font-size': 12, fill: '#444444' }));
-  parts.push(text(M.left, 70, caption, { class: 'ghost-caption', 'font-size': 12, fill: '#444444' }));
+  // the name, then the note and the figures on one line when they fit in the width (DejaVu Sans
+  // at 12 px is about 6.9 px a character), else the note on a line of its own
+  const figures = `f ${system.focalLengthMm.toFixed(2)} mm, f/${lens.fNumberMin} widest (the stop drawn open)`;
+  const room = Math.floor((W - M.left - M.right) / 6.9);
+  const lines = !lens.note ? [figures] : lens.note.length + figures.length + 2 <= room ? [`${lens.note}; ${figures}`] : [lens.note.length <= room ? lens.note : `${lens.note.slice(0, room - 1)}\u2026`, figures];
+  parts.push(text(M.left, 30, lens.name, { 'font-size': 17, fill: '#111111' }));
+  lines.forEach((l, k) => parts.push(text(M.left, 50 + 16 * k, l, { 'font-size': 12, fill: '#444444' })));
+  parts.push(text(M.left, 50 + 16 * lines.length, caption, { class: 'ghost-caption', 'font-size': 12, fill: '#444444' }));
   return svgDocument(W, H, ...parts);
 }

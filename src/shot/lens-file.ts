@@ -1,6 +1,7 @@
 // Lens descriptions in YAML: a lens file of its own, a preset (a lens file shipped in lenses/), or
 // the same keys inline in a shot's `lens:` section. Located errors, like the shot file's.
 
+import { lensGeometry } from '../optics/geometry.js';
 import { quarterWave, type Coating } from '../optics/coating.js';
 import { AIR, CATALOGUE, type GlassModel } from '../optics/glass.js';
 import type { Iris, LensModel, LensSurface } from '../optics/lens.js';
@@ -82,7 +83,15 @@ export function readLens(m: MapField, defaultName: string): LensModel | undefine
   }
   if (!name || note === undefined || !sensorWidthMm || !fNumberMin || !iris || !squeeze || !surfaces || (hoodField && !hood)) return undefined;
   if (surfaces.filter((s) => s.stop).length !== 1 || surfaces[surfaces.length - 1].stop) return undefined;
-  return { name, note, surfaces, iris, fNumberMin, sensorWidthMm, squeeze, ...(hood ? { hood } : {}) };
+  const model: LensModel = { name, note, surfaces, iris, fNumberMin, sensorWidthMm, squeeze, ...(hood ? { hood } : {}) };
+  // a lens that could not be built is refused, at the surface where it fails
+  let buildable = true;
+  for (const p of lensGeometry(model)) {
+    if (p.severity !== 'error') continue;
+    list![p.surface].error(p.message);
+    buildable = false;
+  }
+  return buildable ? model : undefined;
 }
 
 /** `none`, or {depth, radius} in mm: the front barrel or hood's opening, ahead of the first vertex. */

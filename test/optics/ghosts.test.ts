@@ -93,9 +93,51 @@ function coveredArea(img: FloatImage): number {
 }
 
 describe('preset lenses', () => {
-  const labelled: Record<string, number> = { 'triplet-50': 50, 'double-gauss-50': 50, 'zoom-like-35': 35, 'anamorphic-40-2x': 40 };
-  it('ships the four presets', () => {
+  const labelled: Record<string, number> = {
+    'triplet-50': 50,
+    'double-gauss-50': 50,
+    'zoom-like-35': 35,
+    'anamorphic-40-2x': 40,
+    'anamorphic-50-1.5x': 50,
+    'portrait-85': 85,
+    'tele-135': 135,
+    'uncoated-50': 50,
+    'multicoated-50': 50,
+  };
+  it('ships the nine presets', () => {
     expect(presetNames()).toEqual(Object.keys(labelled).sort());
+  });
+  it('tele-135 is a telephoto: front vertex to sensor shorter than its focal length', () => {
+    const lens = preset('tele-135');
+    const length = lens.surfaces.reduce((t, s) => t + s.gapMm, 0);
+    expect(length).toBeLessThan(focalLength(lens));
+  });
+  it('uncoated-50 reflects as bare glass: each ghost\'s R_i R_j is the product of the Fresnel normal-incidence reflectances ((n1 - n2) / (n1 + n2))^2 (Hecht)', () => {
+    const lens = preset('uncoated-50');
+    const system = prepareLens(lens, 'draft', 0);
+    const bare = (k: number) => {
+      const a = indexBefore(lens, k, 550);
+      const b = indexAfter(lens, k, 550);
+      return ((a - b) / (a + b)) ** 2;
+    };
+    for (const g of system.ranked) expect(g.reflectance).toBeCloseTo(bare(g.i) * bare(g.j), 10);
+  });
+  it('multicoated-50\'s three-layer coatings reflect far less over the visible band than single MgF2 layers: each ghost (two reflections) at least 4x fainter', () => {
+    // mean normal-incidence reflectance of each air-glass surface from 430 to 670 nm
+    const band = (lens: LensModel) =>
+      lens.surfaces.map((sf, k) => {
+        if (sf.stop || sf.coating.length === 0) return 0;
+        let sum = 0;
+        let n = 0;
+        for (let nm = 430; nm <= 670; nm += 10, n++) sum += reflectance(indexBefore(lens, k, nm), indexAfter(lens, k, nm), sf.coating, nm, 1);
+        return sum / n;
+      });
+    const multi = band(preset('multicoated-50')).filter((r) => r > 0);
+    const single = band(preset('double-gauss-50')).filter((r) => r > 0);
+    const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
+    expect(Math.max(...multi)).toBeLessThan(0.0045);
+    expect(mean(single)).toBeGreaterThan(0.006);
+    expect(mean(multi) ** 2 * 4).toBeLessThan(mean(single) ** 2);
   });
   for (const [name, f] of Object.entries(labelled)) {
     it(`${name}: the focal length computed from the prescription is the labelled ${f} mm`, () => {

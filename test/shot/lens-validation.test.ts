@@ -38,7 +38,7 @@ describe('lens validation', () => {
   });
   it('names an unknown preset with a hint and the choices', () => {
     expect(problems('  preset: tripplet-50\n')).toEqual([
-      'shot.yaml:15:11: lens.preset: expected one of anamorphic-40-2x, double-gauss-50, triplet-50, zoom-like-35, found "tripplet-50" (did you mean "triplet-50"?)',
+      'shot.yaml:15:11: lens.preset: expected one of anamorphic-40-2x, anamorphic-50-1.5x, double-gauss-50, multicoated-50, portrait-85, tele-135, triplet-50, uncoated-50, zoom-like-35, found "tripplet-50" (did you mean "triplet-50"?)',
     ]);
   });
   it('refuses an f-number wider than the design', () => {
