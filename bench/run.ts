@@ -350,6 +350,12 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   rmSync(dir, { recursive: true, force: true });
 }
 
+// --- lens preparation per preset (bench/lenses.ts)
+{
+  const { lensRows } = await import('./lenses.js');
+  rows.push(...lensRows(RUNS));
+}
+
 // --- the look-dev preview (bench/preview.ts)
 {
   const { previewRows } = await import('./preview.js');

@@ -93,3 +93,13 @@ surfaces:
     }
   });
 });
+
+describe('straylight lens and geometry warnings', () => {
+  it('prints what would be hard to make as a warning on stderr, the table on stdout', async () => {
+    const { cli } = await import('../helpers.js');
+    const r = await cli(['lens', 'double-gauss-50']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/^lens {6}double-gauss-50 \(preset\)/);
+    expect(r.stderr).toMatch(/^warning: double-gauss-50: surface 4: the element after this surface is \d\.\d times thicker at its rim \(\d+\.\d\d mm\) than at its centre \(\d\.\d\d mm\): hard to make\n$/);
+  });
+});

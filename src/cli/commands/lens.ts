@@ -7,6 +7,7 @@ import { checkWritableFolder, writeOutputFile } from '../../io/output-file.js';
 import { loadLens } from '../../io/load-lens.js';
 import { chartBytes } from '../../io/svg-png.js';
 import { lensSvg } from '../../plot/lens.js';
+import { lensGeometry } from '../../optics/geometry.js';
 import { ghostMapSvg } from '../../plot/ghost-map.js';
 import { ghostMap } from '../../render/ghost-map.js';
 import { UsageError } from '../../errors.js';
@@ -36,6 +37,8 @@ export function registerLens(program: Command, { io }: CommandContext): void {
       const system = prepareLens(lens, 'medium', 0);
       const report = lensReport(lens, system);
       io.stdout(opts.json ? `${JSON.stringify(report, null, 2)}\n` : formatLensReport(report, source, opts.all ? Infinity : 20));
+      // what would be hard to make (what could not be made was refused when the lens was read)
+      for (const p of lensGeometry(lens)) if (p.severity === 'warning') io.stderr(`warning: ${name}: surface ${p.surface + 1}: ${p.message}\n`);
       if (opts.plot) {
         const g = opts.ghost ?? '1';
         const index = /^\d+$/.test(g) ? Number(g) - 1 : report.ghosts.findIndex((x) => x.name === g);
