@@ -50,10 +50,14 @@ export function lensSvg(lens: LensModel, system: LensSystem, opts: LensDrawing =
     }
     return pts;
   };
+  // an element's rim is its larger clear aperture (a lens is ground to one diameter); a surface is
+  // drawn out to the rim of the element(s) it bounds (lens geometry checks that it reaches it)
+  const rimAfter = (k: number) => (k + 1 < surfaces.length && !surfaces[k].stop && surfaces[k].glass.kind !== 'air' ? Math.max(surfaces[k].semiDiameterMm, surfaces[k + 1].semiDiameterMm) : 0);
+  const extent = (k: number) => Math.max(surfaces[k].semiDiameterMm, rimAfter(k), k > 0 ? rimAfter(k - 1) : 0);
   // glass: between a surface and the next wherever glass follows it
   surfaces.forEach((s, k) => {
     if (s.stop || s.glass.kind === 'air' || k + 1 >= surfaces.length) return;
-    const h = Math.min(s.semiDiameterMm, surfaces[k + 1].semiDiameterMm);
+    const h = rimAfter(k);
     parts.push(el('polygon', { class: 'glass', 'data-surfaces': `${k + 1}-${k + 2}`, points: [...profile(k, h), ...profile(k + 1, h, true)].join(' '), fill: '#cfe3f7', stroke: '#3b6ea5', 'stroke-width': 1.2 }));
   });
   // the axis
@@ -79,7 +83,7 @@ export function lensSvg(lens: LensModel, system: LensSystem, opts: LensDrawing =
       parts.push(...label('#8a5a00'));
       return;
     }
-    parts.push(el('polyline', { class: 'surface', 'data-surface': k + 1, points: profile(k, s.semiDiameterMm).join(' '), fill: 'none', stroke: '#1f3f66', 'stroke-width': 1.5 }));
+    parts.push(el('polyline', { class: 'surface', 'data-surface': k + 1, points: profile(k, extent(k)).join(' '), fill: 'none', stroke: '#1f3f66', 'stroke-width': 1.5 }));
     parts.push(...label('#1f3f66'));
   });
   parts.push(text(M.left, rowY + 36, 'surface numbers as in the ghost table', { fill: '#777777', 'font-size': 11 }));
