@@ -16,6 +16,8 @@ export interface PrescriptionRow {
   /** absent: air after the surface */
   glass?: { nd: number; vd: number };
   semiDiameterMm: number;
+  /** the table's line (1-based) the row stands on */
+  line?: number;
 }
 
 const FLAT = /^(inf|infinity|flat|∞|0|0\.0*)$/i;
@@ -79,7 +81,7 @@ export function parsePrescription(text: string, file: string, diagnostics: Diagn
     if (radiusMm === undefined || thicknessMm === undefined || semiDiameterMm === undefined) return;
     if (semiDiameterMm <= 0 && !stop) return problem(fields.length - 1, 'semi-diameter', 'expected a semi-diameter above 0');
     if (radiusMm !== 0 && semiDiameterMm > Math.abs(radiusMm)) return problem(fields.length - 1, 'semi-diameter', `the semi-diameter ${semiDiameterMm} exceeds the radius of curvature ${Math.abs(radiusMm)}`);
-    rows.push({ stop, radiusMm, thicknessMm, ...(glass ? { glass } : {}), semiDiameterMm });
+    rows.push({ stop, radiusMm, thicknessMm, ...(glass ? { glass } : {}), semiDiameterMm, line: i + 1 });
   });
   if (diagnostics.length > start) return undefined;
   const where = { file, line: 1, col: 1 };

@@ -4,7 +4,7 @@
 // f-number from the stop's semi-diameter, and bad tables located at line:column.
 
 import { execFileSync } from 'node:child_process';
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { loadLens } from '../../src/io/load-lens.js';
@@ -72,5 +72,17 @@ describe('straylight import-lens', () => {
       expect(r.stderr.split('\n')[0]).toMatch(message);
       expect(r.stderr).toMatch(/straylight: 1 problem found; nothing was written\n$/);
     }
+  });
+
+  it('a table whose lens could not be built is refused at the row that fails, and nothing is written', async () => {
+    const dir = tempDir();
+    const table = path.join(dir, 'thin.csv');
+    // 3 mm at the centre, 3.66 + 0.19 mm of sag at the 12 mm rim (r = 21.5 and -380): -0.85 mm
+    writeFileSync(table, 'surface, radius, thickness, n_d, V_d, semi-diameter\n1, 21.5, 3.0, 1.67, 55, 12\n2, -380, 4.0, , , 11\nSTO, inf, 2.8, , , 6\n3, 66, 3.7, 1.67, 55, 8\n4, -26.2, 41.0, , , 9\n');
+    const out = path.join(dir, 'thin.yaml');
+    const r = await cli(['import-lens', table, '-o', out]);
+    expect(r.code).toBe(3);
+    expect(r.stderr).toBe(`${table}:2:1: row 1: the element's surfaces (1 and 2) cross inside its clear aperture: -0.85 mm thick at 12.00 mm from the axis\nstraylight: 1 problem found; nothing was written\n`);
+    expect(existsSync(out)).toBe(false);
   });
 });
