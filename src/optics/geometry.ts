@@ -10,8 +10,11 @@ import type { LensModel } from './lens.js';
 export const MIN_CENTRE_MM = 1;
 /** Thinnest edge an element may have at its rim, mm (common practice). */
 export const MIN_EDGE_MM = 1;
-/** An element this many times thicker at its rim than at its centre is hard to make (a warning). */
-const THICK_EDGE_RATIO = 4;
+/**
+ * An element this many times thicker at its rim than at its centre is hard to make (a warning; from
+ * memory: the thick-edged menisci of fast double-Gauss lenses run to about five).
+ */
+const THICK_EDGE_RATIO = 6;
 
 export interface GeometryProblem {
   /** the surface (0-based) the problem is reported at */

@@ -95,11 +95,18 @@ surfaces:
 });
 
 describe('straylight lens and geometry warnings', () => {
-  it('prints what would be hard to make as a warning on stderr, the table on stdout', async () => {
-    const { cli } = await import('../helpers.js');
-    const r = await cli(['lens', 'double-gauss-50']);
+  it('prints what would be hard to make as a warning on stderr, the table on stdout; the presets have none', async () => {
+    const { cli, tempDir } = await import('../helpers.js');
+    const { writeFileSync } = await import('node:fs');
+    const path = await import('node:path');
+    const file = path.join(tempDir(), 'meniscus.yaml');
+    // a negative element 1.2 mm at its centre and 1.2 + 4.58 + 3.66 = 9.44 mm at its 12 mm rim
+    // (sag(18, 12) = 4.58, sag(-21.5, 12) = -3.66; 7.9x): hard to make, not impossible
+    writeFileSync(file, lensFile('{ radius: -21.5, gap: 1.2, glass: N-BK7, semi_diameter: 12 }', '{ radius: 18, gap: 40, semi_diameter: 12 }'));
+    const r = await cli(['lens', file]);
     expect(r.code).toBe(0);
-    expect(r.stdout).toMatch(/^lens {6}double-gauss-50 \(preset\)/);
-    expect(r.stderr).toMatch(/^warning: double-gauss-50: surface 4: the element after this surface is \d\.\d times thicker at its rim \(\d+\.\d\d mm\) than at its centre \(\d\.\d\d mm\): hard to make\n$/);
+    expect(r.stdout).toMatch(/^lens {6}test \(file\)/);
+    expect(r.stderr).toMatch(/^warning: .*meniscus\.yaml: surface 2: the element after this surface is \d+\.\d times thicker at its rim \(\d+\.\d\d mm\) than at its centre \(1\.20 mm\): hard to make\n$/);
+    for (const name of presetNames()) expect((await cli(['lens', name])).stderr, name).toBe('');
   });
 });
