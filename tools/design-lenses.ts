@@ -16,7 +16,7 @@ import { AIR, CATALOGUE, type GlassModel } from '../src/optics/glass.js';
 import { imagePath, vertexZ, type Iris, type LensModel, type LensSurface } from '../src/optics/lens.js';
 import { planPath, RayHit, traceRay } from '../src/optics/trace.js';
 import { backFocalDistance, focalLength, pathMatrix, stopHeightRatio } from '../src/optics/paraxial.js';
-import { lensGeometry, MIN_CENTRE_MM, MIN_EDGE_MM, sag } from '../src/optics/geometry.js';
+import { lensGeometry, MIN_CENTRE_MM, MIN_EDGE_MM, spanThinnest } from '../src/optics/geometry.js';
 
 const BK7 = CATALOGUE['N-BK7'];
 const SF5 = CATALOGUE['N-SF5'];
@@ -112,12 +112,7 @@ function buildable(lens: LensModel, form: Form, vignette: number): LensModel {
     if (!errors.length) return lens;
     const s = lens.surfaces.map((x) => ({ ...x }));
     for (let k = 0; k + 1 < s.length; k++) {
-      const rim = s[k].glass.kind === 'air' ? Math.min(s[k].semiDiameterMm, s[k + 1].semiDiameterMm) : Math.max(s[k].semiDiameterMm, s[k + 1].semiDiameterMm);
-      let thin = Infinity;
-      for (let i = 0; i <= 32; i++) {
-        const y = (rim * i) / 32;
-        thin = Math.min(thin, s[k].gapMm + sag(s[k + 1].radiusMm, y) - sag(s[k].radiusMm, y));
-      }
+      const thin = spanThinnest(lens, k).mm;
       if (s[k].glass.kind !== 'air') {
         const want = 1.1 * MIN_EDGE_MM;
         if (thin < want) s[k].gapMm += want - thin;

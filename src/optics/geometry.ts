@@ -44,13 +44,28 @@ function thinnest(lens: LensModel, k: number, h: number): { mm: number; atMm: nu
   return best;
 }
 
+/** The rim of the element after surface k: its larger clear aperture (0 when air follows k). */
+export function elementRim(lens: LensModel, k: number): number {
+  const s = lens.surfaces;
+  return k + 1 < s.length && !s[k].stop && s[k].glass.kind !== 'air' ? Math.max(s[k].semiDiameterMm, s[k + 1].semiDiameterMm) : 0;
+}
+
+/**
+ * The thinnest surfaces k and k + 1 are apart over the heights where both must exist: an element's
+ * rim, or across an air gap (the stop's plane included) the smaller of the two apertures.
+ */
+export function spanThinnest(lens: LensModel, k: number): { mm: number; atMm: number } {
+  const s = lens.surfaces;
+  const rim = elementRim(lens, k);
+  return thinnest(lens, k, rim > 0 ? rim : Math.min(s[k].semiDiameterMm, s[k + 1].semiDiameterMm));
+}
+
 const mm = (v: number) => `${v.toFixed(2)} mm`;
 
 /** Every reason the lens could not be built (errors), and what would be hard (warnings). */
 export function lensGeometry(lens: LensModel): GeometryProblem[] {
   const out: GeometryProblem[] = [];
   const s = lens.surfaces;
-  const semi = (k: number) => (s[k].stop ? s[k].semiDiameterMm : s[k].semiDiameterMm);
   for (let k = 0; k < s.length; k++) {
     if (!s[k].stop && s[k].radiusMm !== 0 && s[k].semiDiameterMm >= Math.abs(s[k].radiusMm)) {
       out.push({ surface: k, severity: 'error', message: `the semi-diameter ${mm(s[k].semiDiameterMm)} reaches the radius of curvature ${mm(Math.abs(s[k].radiusMm))}` });
@@ -63,7 +78,7 @@ export function lensGeometry(lens: LensModel): GeometryProblem[] {
     const glass = a.glass.kind !== 'air';
     if (glass) {
       // an element: its rim is the larger clear aperture; both surfaces must reach it
-      const rim = Math.max(semi(k), semi(k + 1));
+      const rim = elementRim(lens, k);
       const short = [k, k + 1].find((j) => s[j].radiusMm !== 0 && rim >= Math.abs(s[j].radiusMm));
       if (short !== undefined) {
         out.push({ surface: short, severity: 'error', message: `the element's rim (${mm(rim)}, the other surface's semi-diameter) reaches this surface's radius of curvature ${mm(Math.abs(s[short].radiusMm))}` });
@@ -71,7 +86,7 @@ export function lensGeometry(lens: LensModel): GeometryProblem[] {
       }
       const centre = a.gapMm;
       const edge = a.gapMm + sag(b.radiusMm, rim) - sag(a.radiusMm, rim);
-      const thin = thinnest(lens, k, rim);
+      const thin = spanThinnest(lens, k);
       if (thin.mm < 0) {
         out.push({ surface: k, severity: 'error', message: `the element's surfaces (${k + 1} and ${k + 2}) cross inside its clear aperture: ${mm(thin.mm)} thick at ${mm(thin.atMm)} from the axis` });
       } else if (centre < MIN_CENTRE_MM) {
@@ -83,8 +98,7 @@ export function lensGeometry(lens: LensModel): GeometryProblem[] {
       }
     } else {
       // an air space (or the stop's plane): the two surfaces must not meet where both exist
-      const reach = Math.min(semi(k), semi(k + 1));
-      const thin = thinnest(lens, k, reach);
+      const thin = spanThinnest(lens, k);
       if (thin.mm < 0) {
         const what = a.stop || b.stop ? `surface ${a.stop ? k + 2 : k + 1} passes through the stop's plane` : `surfaces ${k + 1} and ${k + 2} cross`;
         out.push({ surface: k, severity: 'error', message: `the air gap after this surface closes: ${what} ${mm(thin.atMm)} from the axis (${mm(thin.mm)} apart)` });

@@ -4,6 +4,7 @@
 // scale bar, and one ghost's rays traced along its path, in its tint, labelled with its name. The
 // picture is cropped to the lens with margins.
 
+import { elementRim, sag } from '../optics/geometry.js';
 import type { LensSystem } from '../optics/ghost-system.js';
 import { ghostPath, vertexZ, type LensModel } from '../optics/lens.js';
 import { RayHit, planPath, tracePoints } from '../optics/trace.js';
@@ -19,12 +20,6 @@ const M = { left: 40, right: 60, top: 104, bottom: 96 };
 /** the page is as wide as the lens needs at the height's scale, within these bounds */
 const MIN_W = 900;
 const MAX_W = 1400;
-
-/** The sag of a spherical surface at height y (0 for a flat one). */
-function sag(radiusMm: number, y: number): number {
-  if (radiusMm === 0) return 0;
-  return radiusMm - Math.sign(radiusMm) * Math.sqrt(Math.max(0, radiusMm * radiusMm - y * y));
-}
 
 const hex = (rgb: readonly number[]) => `#${rgb.map((c) => Math.round(Math.max(0, Math.min(1, c)) * 255).toString(16).padStart(2, '0')).join('')}`;
 
@@ -52,12 +47,11 @@ export function lensSvg(lens: LensModel, system: LensSystem, opts: LensDrawing =
   };
   // an element's rim is its larger clear aperture (a lens is ground to one diameter); a surface is
   // drawn out to the rim of the element(s) it bounds (lens geometry checks that it reaches it)
-  const rimAfter = (k: number) => (k + 1 < surfaces.length && !surfaces[k].stop && surfaces[k].glass.kind !== 'air' ? Math.max(surfaces[k].semiDiameterMm, surfaces[k + 1].semiDiameterMm) : 0);
-  const extent = (k: number) => Math.max(surfaces[k].semiDiameterMm, rimAfter(k), k > 0 ? rimAfter(k - 1) : 0);
+  const extent = (k: number) => Math.max(surfaces[k].semiDiameterMm, elementRim(lens, k), k > 0 ? elementRim(lens, k - 1) : 0);
   // glass: between a surface and the next wherever glass follows it
   surfaces.forEach((s, k) => {
     if (s.stop || s.glass.kind === 'air' || k + 1 >= surfaces.length) return;
-    const h = rimAfter(k);
+    const h = elementRim(lens, k);
     parts.push(el('polygon', { class: 'glass', 'data-surfaces': `${k + 1}-${k + 2}`, points: [...profile(k, h), ...profile(k + 1, h, true)].join(' '), fill: '#cfe3f7', stroke: '#3b6ea5', 'stroke-width': 1.2 }));
   });
   // the axis

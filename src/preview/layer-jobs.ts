@@ -60,3 +60,15 @@ export function drawLayers(shot: ResolvedShot, shots: ResolvedShot[], n: number,
   const mattes = matteProvider(shot);
   return shots.map((s, i) => renderFrame(s, n, undefined, mattes, reuse?.[i]));
 }
+
+/**
+ * sum += gain x layer, a row at a time (a function per row, so V8 optimises it by call count in
+ * the first frame rather than on stack replacement).
+ */
+export function addScaled(sum: Float32Array, layer: Float32Array, gain: number, rowFloats: number): void {
+  for (let o = 0; o < sum.length; o += rowFloats) addRow(sum, layer, gain, o, o + rowFloats);
+}
+
+function addRow(sum: Float32Array, layer: Float32Array, gain: number, from: number, to: number): void {
+  for (let i = from; i < to; i++) sum[i] += gain * layer[i];
+}

@@ -8,7 +8,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { ElementName, ResolvedShot } from '../shot/types.js';
-import { splitLayers, type LayerJob } from './layer-jobs.js';
+import { addScaled, splitLayers, type LayerJob } from './layer-jobs.js';
 import type { FromPreviewWorker, ToPreviewWorker } from './worker-entry.js';
 
 /** The compiled thread script (tests run from src/, the thread always runs from dist/). */
@@ -45,10 +45,6 @@ export class PreviewPool {
     });
   }
 
-  get size(): number {
-    return this.threads.length;
-  }
-
   /** Draw from now on with this shot (its elements split between the threads). */
   use(version: number, shot: ResolvedShot, elements: ElementName[]): void {
     this.version = version;
@@ -78,7 +74,7 @@ export class PreviewPool {
     for (const r of replies) {
       if ('error' in r) throw new Error(r.error);
       if (!sum) sum = r.sum;
-      else addInto(sum, r.sum, row);
+      else addScaled(sum, r.sum, 1, row);
     }
     return sum!;
   }
@@ -87,13 +83,4 @@ export class PreviewPool {
     this.closed = true;
     await Promise.all(this.threads.map((t) => t.worker.terminate()));
   }
-}
-
-/** sum += add, a row at a time (optimised by call count in the first frame). */
-function addInto(sum: Float32Array, add: Float32Array, rowFloats: number): void {
-  for (let o = 0; o < sum.length; o += rowFloats) addRowInto(sum, add, o, o + rowFloats);
-}
-
-function addRowInto(sum: Float32Array, add: Float32Array, from: number, to: number): void {
-  for (let i = from; i < to; i++) sum[i] += add[i];
 }

@@ -9,7 +9,8 @@ import { formatDiagnostic, ShotError, StraylightError } from '../errors.js';
 import { expandFramePath } from '../format/frame-path.js';
 import { loadShot } from '../io/load-shot.js';
 import { encodePng } from '../io/png.js';
-import { readFrameLinear, type LinearFrame } from '../io/read-frame.js';
+import { readFrameLinear } from '../io/read-frame.js';
+import { resampleArea } from '../review/source.js';
 import type { GhostQuality } from '../optics/ghost-system.js';
 import { prepareLens, type LensSystem } from '../optics/ghost-system.js';
 import { diskFlux } from '../elements/core.js';
@@ -192,7 +193,8 @@ export class PreviewSession {
       if (!existsSync(file)) note = `no plate frame ${file}`;
       else {
         try {
-          addResampled(img, readFrameLinear(file));
+          const plate = resampleArea(readFrameLinear(file), img.width, img.height);
+          for (let p = 0, o = 0; p < plate.rgb.length; p += 3, o += 4) for (let c = 0; c < 3; c++) img.data[o + c] += plate.rgb[p + c];
         } catch (e) {
           note = `plate frame ${file} cannot be read: ${e instanceof Error ? e.message : String(e)}`;
         }
@@ -257,38 +259,6 @@ export class PreviewSession {
       if (this.pngBytes <= PNG_BYTES) break;
       this.pngs.delete(k);
       this.pngBytes -= v.length;
-    }
-  }
-}
-
-/** Add a plate frame to the picture, area-averaged (or repeated) onto its size, in linear light. */
-function addResampled(img: FloatImage, plate: LinearFrame): void {
-  const { width: w, height: h } = img;
-  const sx = plate.width / w;
-  const sy = plate.height / h;
-  const d = img.data;
-  for (let y = 0; y < h; y++) {
-    const y0 = Math.floor(y * sy);
-    const y1 = Math.max(y0 + 1, Math.min(plate.height, Math.floor((y + 1) * sy)));
-    for (let x = 0; x < w; x++) {
-      const x0 = Math.floor(x * sx);
-      const x1 = Math.max(x0 + 1, Math.min(plate.width, Math.floor((x + 1) * sx)));
-      let r = 0;
-      let g = 0;
-      let b = 0;
-      for (let py = y0; py < y1; py++) {
-        for (let px = x0; px < x1; px++) {
-          const i = (py * plate.width + px) * 3;
-          r += plate.rgb[i];
-          g += plate.rgb[i + 1];
-          b += plate.rgb[i + 2];
-        }
-      }
-      const k = 1 / ((y1 - y0) * (x1 - x0));
-      const o = (y * w + x) * 4;
-      d[o] += r * k;
-      d[o + 1] += g * k;
-      d[o + 2] += b * k;
     }
   }
 }

@@ -9,7 +9,7 @@
 import { parentPort } from 'node:worker_threads';
 import { FloatImage } from '../raster/image.js';
 import type { ElementName, ResolvedShot } from '../shot/types.js';
-import { drawLayers, jobShots, type LayerJob } from './layer-jobs.js';
+import { addScaled, drawLayers, jobShots, type LayerJob } from './layer-jobs.js';
 
 export type ToPreviewWorker =
   | { type: 'init'; version: number; shot: ResolvedShot; jobs: LayerJob[] }
@@ -65,12 +65,3 @@ parentPort!.on('message', (msg: ToPreviewWorker) => {
     parentPort!.postMessage({ version: msg.version, n: msg.n, error: e instanceof Error ? e.message : String(e) } satisfies FromPreviewWorker);
   }
 });
-
-/** sum += gain x add, a row at a time (optimised by call count in the first frame). */
-export function addScaled(sum: Float32Array, add: Float32Array, gain: number, rowFloats: number): void {
-  for (let o = 0; o < sum.length; o += rowFloats) addRow(sum, add, gain, o, o + rowFloats);
-}
-
-function addRow(sum: Float32Array, add: Float32Array, gain: number, from: number, to: number): void {
-  for (let i = from; i < to; i++) sum[i] += gain * add[i];
-}

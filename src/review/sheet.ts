@@ -6,7 +6,7 @@
 import { FloatImage } from '../raster/image.js';
 import { framesToTimecode } from '../timeline/timecode.js';
 import { el, esc, svgDocument, text } from '../plot/svg.js';
-import { addPlate, readPlate, readSource, type SequenceSource } from './source.js';
+import { addPlate, readPlate, readSource, resampleArea, type SequenceSource } from './source.js';
 import type { LinearFrame } from '../io/read-frame.js';
 
 export interface SheetOptions {
@@ -95,33 +95,14 @@ export function sheetSvg(picture: string, width: number, height: number, title: 
 
 /** Area-average the frame into a tw x th tile at (x0, y0), clipped to display white. */
 function drawTile(img: FloatImage, f: LinearFrame, x0: number, y0: number, tw: number, th: number): void {
-  const sx = f.width / tw;
-  const sy = f.height / th;
+  const t = resampleArea(f, tw, th);
   for (let ty = 0; ty < th; ty++) {
-    const ya = ty * sy;
-    const yb = ya + sy;
     for (let tx = 0; tx < tw; tx++) {
-      const xa = tx * sx;
-      const xb = xa + sx;
-      let r = 0;
-      let g = 0;
-      let b = 0;
-      let wsum = 0;
-      for (let y = Math.floor(ya); y < Math.min(f.height, Math.ceil(yb)); y++) {
-        const wy = Math.min(yb, y + 1) - Math.max(ya, y);
-        for (let x = Math.floor(xa); x < Math.min(f.width, Math.ceil(xb)); x++) {
-          const w = wy * (Math.min(xb, x + 1) - Math.max(xa, x));
-          const i = (y * f.width + x) * 3;
-          r += w * f.rgb[i];
-          g += w * f.rgb[i + 1];
-          b += w * f.rgb[i + 2];
-          wsum += w;
-        }
-      }
+      const i = (ty * tw + tx) * 3;
       const o = ((y0 + ty) * img.width + x0 + tx) * 4;
-      img.data[o] = Math.min(1, r / wsum);
-      img.data[o + 1] = Math.min(1, g / wsum);
-      img.data[o + 2] = Math.min(1, b / wsum);
+      img.data[o] = Math.min(1, t.rgb[i]);
+      img.data[o + 1] = Math.min(1, t.rgb[i + 1]);
+      img.data[o + 2] = Math.min(1, t.rgb[i + 2]);
     }
   }
 }

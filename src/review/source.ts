@@ -104,6 +104,41 @@ export function readSource(src: SequenceSource, frame: number): LinearFrame {
   return out;
 }
 
+/** A frame at another size, each new pixel the mean of the area it covers (exact overlaps), in linear light. */
+export function resampleArea(f: LinearFrame, w: number, h: number): LinearFrame {
+  const out = new Float32Array(w * h * 3);
+  const sx = f.width / w;
+  const sy = f.height / h;
+  for (let ty = 0; ty < h; ty++) {
+    const ya = ty * sy;
+    const yb = ya + sy;
+    for (let tx = 0; tx < w; tx++) {
+      const xa = tx * sx;
+      const xb = xa + sx;
+      let r = 0;
+      let g = 0;
+      let b = 0;
+      let wsum = 0;
+      for (let y = Math.floor(ya); y < Math.min(f.height, Math.ceil(yb)); y++) {
+        const wy = Math.min(yb, y + 1) - Math.max(ya, y);
+        for (let x = Math.floor(xa); x < Math.min(f.width, Math.ceil(xb)); x++) {
+          const wt = wy * (Math.min(xb, x + 1) - Math.max(xa, x));
+          const i = (y * f.width + x) * 3;
+          r += wt * f.rgb[i];
+          g += wt * f.rgb[i + 1];
+          b += wt * f.rgb[i + 2];
+          wsum += wt;
+        }
+      }
+      const o = (ty * w + tx) * 3;
+      out[o] = r / wsum;
+      out[o + 1] = g / wsum;
+      out[o + 2] = b / wsum;
+    }
+  }
+  return { width: w, height: h, rgb: out };
+}
+
 /** The plate's frame, which must exist and match the pass's size. */
 export function readPlate(plateTemplate: string, frame: number, width: number, height: number, option = '--over'): LinearFrame {
   const file = expandFramePath(path.resolve(plateTemplate), frame);

@@ -44,11 +44,12 @@ export function registerImportLens(program: Command, { io }: CommandContext): vo
       const draft = prescriptionLensText(rows, { name, source, sensorWidthMm: opts.sensorWidth, fNumberMin: opts.fNumberMin ?? 2 });
       const parsed = parseLensText(draft, opts.out, name);
       // a problem of a surface (a lens that could not be built) is located at its row of the table
-      const rowOf = (d: Diagnostic) => {
-        const k = /^surfaces\[(\d+)\]/.exec(d.path);
-        return k ? rows[Number(k[1])]?.line : undefined;
+      const atRow = (d: Diagnostic): Diagnostic => {
+        const k = Number(/^surfaces\[(\d+)\]/.exec(d.path)?.[1]);
+        const line = rows[k]?.line;
+        return line ? { ...d, path: `row ${k + 1}`, loc: { file: table, line, col: 1 } } : { ...d, loc: { file: table, line: 1, col: 1 } };
       };
-      if (!parsed.model) throw new ShotError(parsed.diagnostics.map((d) => ({ ...d, path: rowOf(d) ? `row ${rows.findIndex((r) => r.line === rowOf(d)) + 1}` : d.path, loc: { file: table, line: rowOf(d) ?? 1, col: 1 } })), 'nothing was written');
+      if (!parsed.model) throw new ShotError(parsed.diagnostics.map(atRow), 'nothing was written');
       const f = focalLength(parsed.model);
       if (!(f > 0) || !Number.isFinite(f)) throw new InputError(`${table}: the lens has no positive focal length (paraxial f = ${f.toFixed(3)} mm); straylight draws flares of lenses that form an image`);
       let fNumber = opts.fNumberMin;
