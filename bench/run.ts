@@ -112,6 +112,8 @@ const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
 const roundRuns: SequenceRun[][] = [];
 for (let r = 0; r < rounds; r++) roundRuns.push([1, 2, 2, 1].map((jobs) => sequenceRun(jobs, 1920, 1080, seqFrames)));
 const seqRuns = roundRuns.flat();
+// the same 48 frames at 1080p with motion blur (8 samples, the smear method), 2 workers
+const blurRun = JSON.parse(execFileSync(process.execPath, [child, '2', '1920', '1080', String(seqFrames), 'blur'], { encoding: 'utf8' }).trim().split('\n').pop()!) as SequenceRun;
 const of = (runs: SequenceRun[], jobs: number) => runs.filter((r) => r.jobs === jobs);
 const fpsOf = (runs: SequenceRun[], jobs: number) => mean(of(runs, jobs).map((r) => r.fps));
 const fps = { 1: fpsOf(seqRuns, 1), 2: fpsOf(seqRuns, 2) };
@@ -122,6 +124,7 @@ const secs = (v: number) => `${(v / 1000).toFixed(1)} s`;
 const stealOf = (jobs: number) => of(seqRuns, jobs).map((r) => (r.stealMs === null ? '-' : secs(r.stealMs))).join(', ');
 rows.push([`sequence 1920x1080, double-gauss-50 + glow, ${seqFrames} frames, --jobs 1`, `${fps[1].toFixed(2)} fps (runs ${runsOf(1)}; second half ${steady[1].toFixed(2)} fps)`]);
 rows.push([`sequence 1920x1080, same, --jobs 2`, `${fps[2].toFixed(2)} fps (runs ${runsOf(2)}; second half ${steady[2].toFixed(2)} fps)`]);
+rows.push([`sequence 1920x1080, same with motion blur (180 degrees, 8 samples), --jobs 2`, `${blurRun.fps.toFixed(2)} fps (second half ${blurRun.steadyFps.toFixed(2)} fps; x${(fps[2] / blurRun.fps).toFixed(2)} the time without)`]);
 rows.push([
   'ratio jobs 2 / jobs 1 (target >= 1.85 on 2 cores)',
   `${(fps[2] / fps[1]).toFixed(2)} (rounds ${roundRuns.map((rr) => (fpsOf(rr, 2) / fpsOf(rr, 1)).toFixed(2)).join(', ')}; second half ${(steady[2] / steady[1]).toFixed(2)})`,
@@ -208,11 +211,18 @@ rows.push(['worker start-up (spawn, receive the prepared lens, ready)', startup.
   });
   rows.push(['visibility, one light, 128 points, one matte (per frame)', `${((per / 1000) * 1000).toFixed(1)} us`]);
   const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
-  const one = flareShot(960, 540, 1, dir);
-  const eight = { ...one, shutter: { angleDeg: 180, samples: 8, phaseDeg: -90 } };
-  const t1 = time(() => renderFrame(one, 1), 3);
-  const t8 = time(() => renderFrame(eight, 1), 3);
-  rows.push(['frame 960x540 with the lens, 8 shutter samples vs 1', `${ms(t8)} vs ${ms(t1)} (x${(t8 / t1).toFixed(2)})`]);
+  // the sun of the sequence rows at frame 20 of 48: 6 px of motion across a 180-degree shutter
+  for (const [w, h] of [[960, 540], [1920, 1080]]) {
+    const one = flareShot(w, h, 48, dir);
+    const open = (method: 'smear' | 'exact') => ({ ...one, shutter: { angleDeg: 180, samples: 8, phaseDeg: -90, method } });
+    const smear = open('smear');
+    const exact = open('exact');
+    const runs = w > 1000 ? 3 : RUNS;
+    const t1 = time(() => renderFrame(one, 20), runs);
+    const t8 = time(() => renderFrame(smear, 20), runs);
+    const te = time(() => renderFrame(exact, 20), runs);
+    rows.push([`frame ${w}x${h} with the lens, 8 shutter samples (smear; exact) vs 1`, `${ms(t8)}; ${ms(te)} vs ${ms(t1)} (x${(t8 / t1).toFixed(2)}; x${(te / t1).toFixed(2)})`]);
+  }
   rmSync(dir, { recursive: true, force: true });
 }
 

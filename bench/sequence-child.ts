@@ -52,7 +52,7 @@ function ticksPerSecond(): number {
 }
 
 /** The bench's sequence: one sun crossing the frame through the double-Gauss preset, with glow. */
-export function flareShot(width: number, height: number, frames: number, dir: string): ResolvedShot {
+export function flareShot(width: number, height: number, frames: number, dir: string, shutter = ''): ResolvedShot {
   const text = `version: 1
 frame: { width: ${width}, height: ${height}, rate: 24, first: 1, last: ${frames} }
 lights:
@@ -64,16 +64,18 @@ lights:
 lens: { preset: double-gauss-50, f_number: 4 }
 flare:
   glow: { fraction: 0.02, size: 8, falloff: 2.6 }
-output: { path: "${dir}/f.####.png" }
+${shutter}output: { path: "${dir}/f.####.png" }
 `;
   return resolveShot(text, path.join(dir, 'bench.yaml'), { readText: (p) => readFileSync(p, 'utf8'), presetNames, presetPath });
 }
 
 async function main(): Promise<void> {
-  const [jobs, width, height, frames] = process.argv.slice(2).map(Number);
+  const [jobs, width, height, frames] = process.argv.slice(2, 6).map(Number);
+  // a sixth argument, `blur`, opens the shutter (180 degrees, 8 samples, the default method)
+  const shutter = process.argv[6] === 'blur' ? 'shutter: { angle: 180, samples: 8 }\n' : '';
   const dir = mkdtempSync(path.join(tmpdir(), 'straylight-bench-'));
   try {
-    const shot = flareShot(width, height, frames, dir);
+    const shot = flareShot(width, height, frames, dir, shutter);
     const stamps: number[] = [];
     const steal0 = stealNow();
     const cpu0 = process.cpuUsage();

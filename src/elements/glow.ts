@@ -97,3 +97,40 @@ function nearGlow(x: number, y: number, xPx: number, yPx: number, pixelAspect: n
   }
   return k * (1 / (NEAR_SAMPLES * NEAR_SAMPLES));
 }
+
+/**
+ * Add the part of the glow within a smooth window around its centre: all of it within `inner`
+ * (display px), falling as a raised cosine to nothing at `outer`, over the pixels that reach.
+ * With the rest drawn where it is, the part near the light is what a motion smear needs to move
+ * (the tail barely changes over a few pixels of motion). Returns the pixels written.
+ */
+export function addGlowNear(img: FloatImage, g: GlowSource, pixelAspect: number, inner: number, outer: number, sign = 1): { x0: number; y0: number; x1: number; y1: number } {
+  const { xPx, yPx, sizePx, falloff, energy } = g;
+  const b = falloff / 2;
+  const s2 = sizePx * sizePx;
+  const norm = ((b - 1) / (Math.PI * s2)) * pixelAspect * sign;
+  const invS2 = 1 / s2;
+  const x0 = Math.max(0, Math.floor(xPx - outer / pixelAspect));
+  const x1 = Math.min(img.width - 1, Math.ceil(xPx + outer / pixelAspect));
+  const y0 = Math.max(0, Math.floor(yPx - outer));
+  const y1 = Math.min(img.height - 1, Math.ceil(yPx + outer));
+  const nearR = 2 + 1.5 * Math.hypot(pixelAspect, 1);
+  const near2 = sizePx < 3 * Math.hypot(pixelAspect, 1) ? nearR * nearR + 4 * s2 : -1;
+  const d = img.data;
+  for (let y = y0; y <= y1; y++) {
+    const dy = y + 0.5 - yPx;
+    for (let x = x0; x <= x1; x++) {
+      const dx = (x + 0.5 - xPx) * pixelAspect;
+      const d2 = dx * dx + dy * dy;
+      if (d2 >= outer * outer) continue;
+      const r = Math.sqrt(d2);
+      const w = r <= inner ? 1 : 0.5 + 0.5 * Math.cos((Math.PI * (r - inner)) / (outer - inner));
+      const k = (d2 < near2 ? nearGlow(x, y, xPx, yPx, pixelAspect, b, invS2) : Math.exp(-b * Math.log(1 + d2 * invS2))) * w * norm;
+      const i = (y * img.width + x) * 4;
+      d[i] += energy[0] * k;
+      d[i + 1] += energy[1] * k;
+      d[i + 2] += energy[2] * k;
+    }
+  }
+  return { x0, y0, x1, y1 };
+}

@@ -11,6 +11,7 @@ import { ExitCode, StraylightError } from '../errors.js';
 import { MATTE_CACHE_BYTES } from '../io/matte-provider.js';
 import type { ResolvedShot } from '../shot/types.js';
 import { activeElements } from './passes.js';
+import { MAX_PAD_PX, smearApplies } from './shutter-smear.js';
 
 /** A thread's own cost (V8 isolate, loaded modules, small buffers), bytes. */
 const THREAD_BYTES = 64 * 2 ** 20;
@@ -42,7 +43,12 @@ export function workerBytes(shot: ResolvedShot): number {
   if (shot.lens && shot.ghosts.enabled) perPx += 12 * (1 / 4 + 1 / 16 + 1 / 64);
   // the dust texture, one float a pixel
   if (shot.dust.fraction > 0) perPx += 4;
+  // the smear shutter's scratch: the frame with a margin for the elements that move with the
+  // light, another for ghosts drawn alone, and their low-resolution layers
+  const smear = smearApplies(shot);
+  if (smear) perPx += 16 + 16 + 12 * (1 / 4 + 1 / 16 + 1 / 64);
   let bytes = THREAD_BYTES + px * perPx;
+  if (smear) bytes += 2 * 2 * MAX_PAD_PX * (shot.frame.widthPx + shot.frame.heightPx + 2 * MAX_PAD_PX) * 16 * 1.4;
   // decoded matte frames: a float a pixel each, the cache's budget per matte, and the decoder's
   // RGBA copy of the frame being read
   for (let i = 0; i < shot.mattes.length; i++) bytes += Math.max(2 * px * 4, Math.min(MATTE_CACHE_BYTES, 8 * px * 4)) + px * 4 * 2;

@@ -59,7 +59,7 @@ function resolveShotRoot(ctx: ResolveContext, root: Field, absFile: string): Res
   const mattesField = m.get('mattes');
   const mattes = mattesField ? resolveMattes(ctx, mattesField) : [];
   const shutterField = m.get('shutter');
-  const shutter = shutterField ? resolveShutter(ctx, shutterField) : { angleDeg: 0, samples: 1, phaseDeg: 0 };
+  const shutter = shutterField ? resolveShutter(ctx, shutterField) : { angleDeg: 0, samples: 1, phaseDeg: 0, method: 'smear' as const };
   const flareField = m.get('flare');
   const allOn = () => Object.fromEntries((['core', 'glow', 'ghosts', 'starburst', 'veil', 'streak', 'dust'] as ElementName[]).map((n) => [n, elementControl(ctx, undefined)!])) as Record<ElementName, ElementControl>;
   const flare = flareField ? resolveFlare(ctx, flareField, lens) : { glow: DEFAULT_GLOW, ghosts: DEFAULT_GHOSTS, starburst: DEFAULT_STARBURST, veil: { fraction: 0 }, streak: DEFAULT_STREAK, streakGiven: false, dust: DEFAULT_DUST, dustSeedGiven: false, elements: allOn() };

@@ -63,6 +63,8 @@ export interface ShutterSettings {
   samples: number;
   /** where it opens, degrees relative to the frame's time (default: centred, -angle/2) */
   phaseDeg: number;
+  /** smear: each span of the path drawn once and smeared along it (render/shutter-smear.ts); exact: every light drawn at every sample */
+  method: 'smear' | 'exact';
 }
 
 export interface ResolvedLight {

@@ -17,6 +17,26 @@ const COLOUR_PROBES: readonly [number, number][] = [[0.5, 0.5], [0.3, 0.3], [0.7
 
 const hit = new RayHit();
 
+/**
+ * Where the ghost's chief ray (through the middle of the iris) lands on the frame, in pixels, for
+ * a light seen along slopes (sx, sy); undefined when the ray is lost. A ghost's motion across the
+ * frame follows it (the paraxial position ratio misses the lens's distortion by several per cent).
+ */
+export function chiefLanding(system: LensSystem, view: GhostView, ghost: RankedGhost, plan: PathPlan, sx: number, sy: number, stopRadius: number, pxX: number, pxY: number): [number, number] | undefined {
+  const crossing = ghost.stopCrossings.find((c) => Math.abs(c.a) > 1e-9);
+  if (!crossing) return undefined;
+  const norm = 1 / Math.sqrt(1 + sx * sx + sy * sy);
+  const dx = sx * norm;
+  const dy = sy * norm;
+  const dz = norm;
+  const launch = Math.max(system.lens.surfaces[0].semiDiameterMm + 10, (system.lens.hood?.depthMm ?? 0) + 1);
+  const gx = (-crossing.b * sx) / crossing.a;
+  const gy = (-crossing.b * sy) / crossing.a;
+  plan.stopRadiusMm = stopRadius;
+  if (!traceRay(plan, gx - (launch * dx) / dz, gy - (launch * dy) / dz, -launch, dx, dy, dz, hit)) return undefined;
+  return [view.opticalCentre[0] - hit.x * pxX, view.opticalCentre[1] - hit.y * pxY];
+}
+
 /** The traced grid of one ghost at one wavelength (drawn by the GridRaster it extends). */
 export class GhostGrid extends GridRaster {
   private readonly dx: number;

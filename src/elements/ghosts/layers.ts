@@ -41,21 +41,35 @@ function resetBox(layer: Layer): void {
   layer.bx1 = layer.by1 = -Infinity;
 }
 
+function makeLayers(width: number, height: number): Layer[] {
+  return [1, 2, 4, 8].map((scale) => {
+    const w = Math.ceil(width / scale);
+    const h = Math.ceil(height / scale);
+    return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false, bx0: Infinity, by0: Infinity, bx1: -Infinity, by1: -Infinity };
+  });
+}
+
 // low-resolution layers, kept per thread and cleared after use (no fresh memory each call)
 let layerCache: { w: number; h: number; layers: Layer[] } | undefined;
 export function layersFor(width: number, height: number): Layer[] {
-  if (!layerCache || layerCache.w !== width || layerCache.h !== height) {
-    layerCache = {
-      w: width,
-      h: height,
-      layers: [1, 2, 4, 8].map((scale) => {
-        const w = Math.ceil(width / scale);
-        const h = Math.ceil(height / scale);
-        return { scale, w, h, data: scale === 1 ? new Float32Array(0) : new Float32Array(w * h * 3), used: false, bx0: Infinity, by0: Infinity, bx1: -Infinity, by1: -Infinity };
-      }),
-    };
-  }
+  if (!layerCache || layerCache.w !== width || layerCache.h !== height) layerCache = { w: width, h: height, layers: makeLayers(width, height) };
   return layerCache.layers;
+}
+
+// a second set, for a ghost drawn alone before it is smeared over the open shutter
+let scratchCache: { w: number; h: number; layers: Layer[] } | undefined;
+export function scratchLayersFor(width: number, height: number): Layer[] {
+  if (!scratchCache || scratchCache.w !== width || scratchCache.h !== height) scratchCache = { w: width, h: height, layers: makeLayers(width, height) };
+  return scratchCache.layers;
+}
+
+/** Zero a layer's written box (RGB at stride 3, or the frame at stride 4) and forget the box. */
+export function clearWritten(layer: Layer, data: Float32Array, w: number, h: number, stride: number): void {
+  const x0 = Math.max(0, layer.bx0);
+  const x1 = Math.min(w - 1, layer.bx1);
+  for (let y = Math.max(0, layer.by0); y <= Math.min(h - 1, layer.by1); y++) if (x1 >= x0) data.fill(0, (y * w + x0) * stride, (y * w + x1 + 1) * stride);
+  layer.used = false;
+  resetBox(layer);
 }
 
 /** Add every used coarse layer into the frame (through the finer layers) and reset them. */

@@ -61,6 +61,15 @@ export class GridRaster {
     this.sv = new Float64Array(m * 3);
   }
 
+  /** Move the traced grid on the frame by (dx, dy) px (a ghost drawn at several places of its motion). */
+  shift(dx: number, dy: number): void {
+    const { vx, vy } = this;
+    for (let v = 0; v < vx.length; v++) {
+      vx[v] += dx;
+      vy[v] += dy;
+    }
+  }
+
   draw(img: FloatImage, layer: Layer, scale: [number, number, number]): void {
     const { n, side, valid, vig, geo } = this;
     layer.used = true;

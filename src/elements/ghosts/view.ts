@@ -2,6 +2,7 @@
 // from frame pixels to the lens's sensor and incoming ray slopes.
 
 import type { GhostQuality, LensSystem } from '../../optics/ghost-system.js';
+import type { FloatImage } from '../../raster/image.js';
 
 export interface GhostView {
   widthPx: number;
@@ -31,6 +32,35 @@ export interface GhostFrameSettings {
   only?: boolean;
   /** draw only the ghosts of rank index modulo count (see GhostSettings.share) */
   share?: { index: number; count: number };
+  /**
+   * the share of the frame's exposure this drawing carries (1 / samples for one shutter sample):
+   * which ghosts are skipped or drawn lighter is judged on the light over the whole exposure, so
+   * a blurred frame keeps the ghosts its sharp frame has
+   */
+  exposure?: number;
+  /** smear each ghost along its own motion over a span of the open shutter (render/shutter-smear.ts) */
+  motion?: GhostMotion;
+}
+
+/**
+ * A span of the open shutter, as the ghosts smear over it: the light is drawn where GhostLight
+ * puts it and moves by s * (to - from) over the pieces [a_j, b_j] of s, each carrying mass_j of
+ * the light drawn. Each ghost's own motion is traced from `from` and `to` (ghosts move at their
+ * own rate, some against the light).
+ */
+export interface GhostMotion {
+  from: readonly [number, number];
+  to: readonly [number, number];
+  a: readonly number[];
+  b: readonly number[];
+  mass: readonly number[];
+  /**
+   * a cleared image to draw full-resolution ghosts into before they are smeared (left cleared):
+   * the frame with `pad` pixels (a multiple of 8) on every side, so what the motion carries into
+   * the frame from outside it is there
+   */
+  scratch: FloatImage;
+  pad: number;
 }
 
 export interface GhostStats {

@@ -66,7 +66,7 @@ export function resolveFrame(ctx: ResolveContext, f: Field): ResolvedFrame | und
 }
 
 export function resolveShutter(ctx: ResolveContext, f: Field): ShutterSettings | undefined {
-  const m = f.map('{angle, samples, phase}');
+  const m = f.map('{angle, samples, phase, method}');
   if (!m) return undefined;
   const a = m.get('angle');
   const angleDeg = a ? a.number({ min: 0, max: 360 }) : 180;
@@ -74,7 +74,9 @@ export function resolveShutter(ctx: ResolveContext, f: Field): ShutterSettings |
   const samples = sm ? sm.number({ integer: true, min: 1, max: 256 }) : 8;
   const ph = m.get('phase');
   const phaseDeg = ph ? ph.number({ min: -360, max: 360 }) : angleDeg === undefined ? 0 : -angleDeg / 2;
+  const me = m.get('method');
+  const method = me ? me.oneOf(['smear', 'exact'] as const) : 'smear';
   m.finish();
-  if (angleDeg === undefined || samples === undefined || phaseDeg === undefined) return undefined;
-  return { angleDeg, samples, phaseDeg };
+  if (angleDeg === undefined || samples === undefined || phaseDeg === undefined || method === undefined) return undefined;
+  return { angleDeg, samples, phaseDeg, method };
 }
