@@ -283,7 +283,7 @@ function drawSpan(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, ls:
     // the glow's tail is drawn where it is and only its part near the light is smeared, unless
     // that part would be most of the frame
     const reach = reachPx(k);
-    const inner = Math.max(GLOW_NEAR_PX, 6 * ls.glow.sizePx, 20 * reach);
+    const inner = Math.max(GLOW_NEAR_PX, 6 * ls.glow.sizePx, 10 * reach);
     const outer = 2 * inner;
     if ((2 * outer) ** 2 / pixelAspect < 0.5 * widthPx * heightPx) {
       // all of it where it is, carrying the span's share of the light; then the near part moved
@@ -321,12 +321,12 @@ function drawSpan(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, ls:
 }
 
 /** Steps (px of the light's path) between the disk's drawings: it is sharp, and its edge is bright. */
-const CORE_STEP_PX = 0.25;
+const CORE_STEP_PX = 0.5;
 /** Most drawings of the disk over a span. */
 const CORE_STEPS = 2048;
 
 /**
- * The light's disk over the span, drawn exactly (area coverage) at steps a quarter pixel apart
+ * The light's disk over the span, drawn exactly (area coverage) at steps half a pixel apart
  * along its path: the sharpest and brightest element, whose edges a smear would soften. Each
  * stratum's steps are hidden by the mattes of its middle.
  */
