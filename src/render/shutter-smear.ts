@@ -6,15 +6,15 @@
 // the light's brightness and its visibility through the mattes are evaluated as the exact method
 // does (they change non-linearly: a light passing a matte edge, an intensity key), and where the
 // light is at the strata's ends. The path is cut into spans along which it runs straight (within
-// STRAIGHT_PX) and, for the ghosts, no longer than GHOST_SPAN_PX; each span's elements are drawn
-// once, at the span's middle, and smeared along the path with each stratum's share of the light
-// spread evenly over the stretch it covers (raster/line-smear.ts). Each ghost's own motion over a
-// span is traced from its chief ray at the span's two ends.
+// STRAIGHT_PX), and for the ghosts into stretches of GHOST_SPAN_PX (at most GHOST_SPANS a span);
+// each one's elements are drawn once, at its middle, and smeared along the path with each
+// stratum's share of the light spread evenly over the stretch it covers (raster/line-smear.ts).
+// Each ghost's own motion over a stretch is traced from its chief ray at the stretch's two ends.
 //
 // What is taken at a span's middle rather than followed through it: the f-number, the element
 // gains and flare settings, the light's colour and radius (its brightness is followed), a ghost's
 // shape (it moves rigidly: a ghost cut by the barrel as it moves changes its cut only between
-// spans), and the mattes' coverage of the disk itself (pixel by pixel, from the middle's matte
+// stretches), and the mattes' coverage of the disk itself (pixel by pixel, from the middle's matte
 // frame). The lens dust, lit by a broad reach around the light rather than moving with it, is drawn
 // at each stratum's middle. A light that is behind the camera at some instant of the shutter is
 // drawn sample by sample as the exact method does.
@@ -38,7 +38,9 @@ import { coatingTint, coverageFor, elementGains, shotAssets } from './light-draw
 /** Largest distance (px) of the light's path from a span's straight chord. */
 export const STRAIGHT_PX = 0.35;
 /** Longest stretch (px) a ghost is smeared over from one tracing: beyond it, its shape is traced again. */
-export const GHOST_SPAN_PX = 96;
+export const GHOST_SPAN_PX = 16;
+/** Most stretches a straight span's ghosts are traced in. */
+const GHOST_SPANS = 3;
 /** The glow is smeared within at least this distance of the light (px); its tail is drawn where it is. */
 const GLOW_NEAR_PX = 24;
 /** Lines a pixel across for the sharp elements' smear (their steps across the motion are 1/4 px). */
@@ -178,16 +180,22 @@ export function smearLight(img: FloatImage, shot: ResolvedShot, light: ResolvedL
   const K = nodes.length - 1;
   const ends = nodes.map((t) => lightState(shot, light, t));
   const strata: Stratum[] = [];
+  // each stratum's flux by Simpson's rule over its ends and middle (a peak of an intensity key
+  // inside the shutter is not flattened to its strata's middles)
+  const fluxOf = (st: LightState): [number, number, number] => (st.gain > 0 && st.placed ? diskFlux(st) : [0, 0, 0]);
+  const endFlux = ends.map(fluxOf);
   for (let j = 0; j < K; j++) {
     const t = 0.5 * (nodes[j] + nodes[j + 1]);
     const mid = lightState(shot, light, t);
-    strata.push({ mid, flux: mid.gain > 0 ? diskFlux(mid) : [0, 0, 0], visibility: 0 });
+    const fm = fluxOf(mid);
+    const flux = [0, 1, 2].map((c) => (endFlux[j][c] + 4 * fm[c] + endFlux[j + 1][c]) / 6) as [number, number, number];
+    strata.push({ mid, flux, visibility: 0 });
   }
-  if (strata.every((s) => s.mid.gain <= 0)) return true;
+  if (strata.every((s) => lum(s.flux) <= 0)) return true;
   if (ends.some((s) => !s.placed) || strata.some((s) => !s.mid.placed)) return false;
   for (let j = 0; j < K; j++) {
     const s = strata[j];
-    if (s.mid.gain <= 0) continue;
+    if (lum(s.flux) <= 0) continue;
     const t = 0.5 * (nodes[j] + nodes[j + 1]);
     const lookups = coverageFor(shot, light, t, mattes, s.mid);
     s.visibility = diskVisibility(s.mid.xPx, s.mid.yPx, s.mid.radiusPx, lookups, { limbDarkening: light.limbDarkening, pixelAspect });
@@ -195,7 +203,7 @@ export function smearLight(img: FloatImage, shot: ResolvedShot, light: ResolvedL
   const pos = ends.map((s) => [s.xPx, s.yPx] as const);
   const assets = shotAssets(shot);
   const ls: LightFlare = light.flare ?? shot;
-  for (const span of straightSpans(pos, 0, K)) drawSpan(img, shot, light, ls, nodes, pos, strata, span, mattes, veil, stats);
+  for (const span of straightSpans(pos, 0, K)) drawSpan(img, shot, light, ls, nodes, pos, strata, ends, span, mattes, veil, stats);
   // the lens dust is lit, not carried: drawn at each stratum as it is
   if (assets.dust) {
     for (let j = 0; j < K; j++) {
@@ -210,7 +218,7 @@ export function smearLight(img: FloatImage, shot: ResolvedShot, light: ResolvedL
 }
 
 /** One straight span: the disk, the ghosts (in spans of their own length) and the elements that move with the light. */
-function drawSpan(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, ls: LightFlare, nodes: readonly number[], pos: readonly (readonly [number, number])[], strata: readonly Stratum[], span: Span, mattes: MatteProvider, veil: number[], stats?: GhostStats): void {
+function drawSpan(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, ls: LightFlare, nodes: readonly number[], pos: readonly (readonly [number, number])[], strata: readonly Stratum[], ends: readonly LightState[], span: Span, mattes: MatteProvider, veil: number[], stats?: GhostStats): void {
   const { widthPx, heightPx, pixelAspect, opticalCentre } = shot.frame;
   const K = strata.length;
   const assets = shotAssets(shot);
@@ -230,12 +238,15 @@ function drawSpan(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, ls:
   // each stratum's share of the light drawn, through the mattes
   const flareMass = strata.map((s) => (lum(s.flux) * s.visibility) / (K * refLum));
   for (let j = span.n0; j < span.n1; j++) for (let c = 0; c < 3; c++) veil[c] += ((strata[j].flux[c] * strata[j].visibility) / K) * ls.veil.fraction * elementGains(ls, 0.5 * (nodes[j] + nodes[j + 1])).gVeil;
-  if (g.gCore > 0) drawCore(img, shot, light, nodes, pos, strata, span, g.gCore, mattes);
+  if (g.gCore > 0) drawCore(img, shot, light, nodes, pos, strata, ends, span, g.gCore, mattes);
   if (!flareMass.some((m, j) => j >= span.n0 && j < span.n1 && m > 0)) return;
   const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, tMid) : 8;
   if (assets.lens && g.gGhosts > 0) {
-    // ghosts change shape as they move: traced again every GHOST_SPAN_PX of the light's path
-    for (const gs of straightSpans(pos, span.n0, span.n1, GHOST_SPAN_PX)) {
+    // ghosts change shape as they move: traced again every GHOST_SPAN_PX of the light's path, in
+    // at most GHOST_SPANS stretches (a fast light's ghosts are smeared so far that their changing
+    // cut matters less than what tracing them more often would cost)
+    const length = Math.hypot(pos[span.n1][0] - pos[span.n0][0], pos[span.n1][1] - pos[span.n0][1]);
+    for (const gs of straightSpans(pos, span.n0, span.n1, Math.max(GHOST_SPAN_PX, length / GHOST_SPANS))) {
       const gMid = gs.n0 === span.n0 && gs.n1 === span.n1 ? ref : lightState(shot, light, 0.5 * (nodes[gs.n0] + nodes[gs.n1]));
       const k = spanKernel(pos, gs, [gMid.xPx, gMid.yPx], flareMass);
       if (!k.mass.some((m) => m > 0)) continue;
@@ -330,7 +341,7 @@ const CORE_STEPS = 2048;
  * along its path: the sharpest and brightest element, whose edges a smear would soften. Each
  * stratum's steps are hidden by the mattes of its middle.
  */
-function drawCore(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, nodes: readonly number[], pos: readonly (readonly [number, number])[], strata: readonly Stratum[], span: Span, gain: number, mattes: MatteProvider): void {
+function drawCore(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, nodes: readonly number[], pos: readonly (readonly [number, number])[], strata: readonly Stratum[], ends: readonly LightState[], span: Span, gain: number, mattes: MatteProvider): void {
   const K = strata.length;
   const { pixelAspect } = shot.frame;
   let total = 0;
@@ -338,14 +349,18 @@ function drawCore(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, nod
   const thin = total > CORE_STEPS ? CORE_STEPS / total : 1;
   for (let j = span.n0; j < span.n1; j++) {
     const s = strata[j];
-    if (s.mid.gain <= 0) continue;
+    if (s.mid.gain <= 0 && ends[j].gain <= 0 && ends[j + 1].gain <= 0) continue;
     const steps = Math.max(1, Math.round(thin * Math.ceil(Math.hypot(pos[j + 1][0] - pos[j][0], pos[j + 1][1] - pos[j][1]) / CORE_STEP_PX)));
     const lookups = coverageFor(shot, light, 0.5 * (nodes[j] + nodes[j + 1]), mattes, s.mid);
     const clearAt = lookups.length ? (x: number, y: number) => lookups.reduce((c, f) => c * (1 - f(x, y)), 1) : undefined;
     const k = gain / (K * steps);
-    const radiance: [number, number, number] = [s.mid.radiance[0] * k, s.mid.radiance[1] * k, s.mid.radiance[2] * k];
+    // the disk's radiance followed through the stratum: linear from its start to its middle to its end
+    const r0 = ends[j].gain > 0 && ends[j].placed ? ends[j].radiance : [0, 0, 0];
+    const r1 = ends[j + 1].gain > 0 && ends[j + 1].placed ? ends[j + 1].radiance : [0, 0, 0];
     for (let q = 0; q < steps; q++) {
       const f = (q + 0.5) / steps;
+      const [ra, rb, u] = f < 0.5 ? [r0, s.mid.radiance, 2 * f] : [s.mid.radiance, r1, 2 * f - 1];
+      const radiance: [number, number, number] = [0, 1, 2].map((c) => (ra[c] + (rb[c] - ra[c]) * u) * k) as [number, number, number];
       const x = pos[j][0] + (pos[j + 1][0] - pos[j][0]) * f;
       const y = pos[j][1] + (pos[j + 1][1] - pos[j][1]) * f;
       addDisk(img, { xPx: x, yPx: y, radiusPx: s.mid.radiusPx, radiance }, pixelAspect, clearAt);

@@ -1,10 +1,13 @@
 // The shutter's smear method (render/shutter-smear.ts, raster/line-smear.ts) against the exact
-// method: the reference is the exact method at 64 samples, i.e. distributed sampling of the open
+// method: the reference is the exact method at 256 samples, i.e. distributed sampling of the open
 // shutter (Cook, Porter & Carpenter, "Distributed ray tracing", SIGGRAPH 1984), whose error falls
-// as the samples grow. At the default 8 samples the smear must be within 1 code RMS of it (8-bit
+// as the samples grow. (The issue names 64; at 64 the disk of a light crossing 40 px in the shutter
+// is drawn 0.6 px apart and that reference is itself 0.9 codes from 256, more than the methods
+// differ by.) At the default 8 samples the smear must be within 1 code RMS of it (8-bit
 // sRGB over black, IEC 61966-2-1 transfer) and no worse than the exact method at 8, on the five
-// motions the smear is most likely to get wrong. Where it does not yet meet that (README, "Motion
-// blur"), each case's bound is the figure measured, so a change that makes it worse fails. The smear itself is checked against the closed
+// motions the smear is most likely to get wrong. Where it is not yet as good as the exact method
+// (the slow pan, the intensity key: README, "Shutter"), the bound is the figure measured, so a
+// change that makes it worse fails. The smear itself is checked against the closed
 // form of a Gaussian spot moved along a segment (a Gaussian across times the difference of two
 // error functions along; Abramowitz & Stegun 7.1).
 
@@ -73,23 +76,23 @@ const frames = (name: string, value: (x: number) => number): Record<string, Floa
 // each light is at frame 2 where the case says; 180 degrees open: half a frame's motion in the shutter
 // [case, shot, most codes RMS from the reference, most codes RMS beyond the exact method's at 8]
 const CASES: [string, () => Promise<ResolvedShot>, number, number][] = [
-  ['a slow pan (3 px across the open shutter, diagonal)', () => load(shotText('[{ frame: 1, x: 234, y: 149 }, { frame: 3, x: 246, y: 153 }]')), 1, 0.15],
-  ['a fast whip (200 px within the shutter)', () => load(shotText('[{ frame: 1, x: -80, y: 170 }, { frame: 3, x: 720, y: 190 }]')), 1.1, 0],
-  ['a light crossing the frame edge mid-shutter', () => load(shotText('[{ frame: 1, x: -80, y: 120 }, { frame: 3, x: 80, y: 130 }]')), 1, 0.5],
+  ['a slow pan (3 px across the open shutter, diagonal)', () => load(shotText('[{ frame: 1, x: 234, y: 149 }, { frame: 3, x: 246, y: 153 }]')), 1, 0.11],
+  ['a fast whip (200 px within the shutter)', () => load(shotText('[{ frame: 1, x: -80, y: 170 }, { frame: 3, x: 720, y: 190 }]')), 1, 0],
+  ['a light crossing the frame edge mid-shutter', () => load(shotText('[{ frame: 1, x: -80, y: 120 }, { frame: 3, x: 80, y: 130 }]')), 1, 0],
   [
     'a light passing behind a matte edge mid-shutter',
     () => load(shotText('[{ frame: 1, x: 280, y: 180 }, { frame: 3, x: 360, y: 180 }]', '13', 'mattes: [{ name: wall, kind: alpha, path: m/w.####.png }]\n'), frames('m/w', (x) => (x >= 320 ? 1 : 0))),
     1,
     0,
   ],
-  ['an intensity key inside the shutter', () => load(shotText('[{ frame: 1, x: 300, y: 160 }, { frame: 3, x: 320, y: 166 }]', '[{ frame: 1, value: 0 }, { frame: 2, value: 13 }, { frame: 3, value: 0 }]')), 1, 0.25],
+  ['an intensity key inside the shutter', () => load(shotText('[{ frame: 1, x: 300, y: 160 }, { frame: 3, x: 320, y: 166 }]', '[{ frame: 1, value: 0 }, { frame: 2, value: 13 }, { frame: 3, value: 0 }]')), 1, 0.02],
 ];
 
-describe('smear shutter against the exact method at 64 samples', () => {
+describe('smear shutter against the exact method at 256 samples', () => {
   for (const [name, make, most, beyond] of CASES) {
     it(name, async () => {
       const shot = await make();
-      const reference = renderFrame(withShutter(shot, 64, 'exact'), 2);
+      const reference = renderFrame(withShutter(shot, 256, 'exact'), 2);
       const exact = rmsCodes(renderFrame(withShutter(shot, 8, 'exact'), 2), reference);
       const smear = rmsCodes(renderFrame(withShutter(shot, 8, 'smear'), 2), reference);
       // the figures the README gives
