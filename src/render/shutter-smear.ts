@@ -237,7 +237,10 @@ function drawSpan(img: FloatImage, shot: ResolvedShot, light: ResolvedLight, ls:
   const at: [number, number] = [ref.xPx, ref.yPx];
   // each stratum's share of the light drawn, through the mattes
   const flareMass = strata.map((s) => (lum(s.flux) * s.visibility) / (K * refLum));
-  for (let j = span.n0; j < span.n1; j++) for (let c = 0; c < 3; c++) veil[c] += ((strata[j].flux[c] * strata[j].visibility) / K) * ls.veil.fraction * elementGains(ls, 0.5 * (nodes[j] + nodes[j + 1])).gVeil;
+  for (let j = span.n0; j < span.n1; j++) {
+    const k = (strata[j].visibility / K) * ls.veil.fraction * elementGains(ls, 0.5 * (nodes[j] + nodes[j + 1])).gVeil;
+    for (let c = 0; c < 3; c++) veil[c] += strata[j].flux[c] * k;
+  }
   if (g.gCore > 0) drawCore(img, shot, light, nodes, pos, strata, ends, span, g.gCore, mattes);
   if (!flareMass.some((m, j) => j >= span.n0 && j < span.n1 && m > 0)) return;
   const fNumber = shot.lens ? evalScalar(shot.lens.fNumber, tMid) : 8;
