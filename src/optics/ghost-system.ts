@@ -13,9 +13,12 @@ export type GhostQuality = 'draft' | 'low' | 'medium' | 'high';
 /**
  * Ray grid cells per side and wavelength samples for each quality, and for faint ghosts (see
  * FAINT_PEAK in elements/ghosts/lod.ts) the lighter grid and wavelength count used below `high`.
+ * `draft` traces faint ghosts at one wavelength (550 nm), tinted to the full set's colour by the
+ * colour match: they lose their colour fringes, not their colour, and the frame takes 0.6 of the
+ * time (measured in DEVELOPERS.md, "Ghost level of detail").
  */
 export const QUALITY: Readonly<Record<GhostQuality, { grid: number; wavelengths: number; faintGrid: number; faintWavelengths: number }>> = {
-  draft: { grid: 12, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },
+  draft: { grid: 12, wavelengths: 3, faintGrid: 12, faintWavelengths: 1 },
   low: { grid: 16, wavelengths: 3, faintGrid: 12, faintWavelengths: 3 },
   medium: { grid: 20, wavelengths: 5, faintGrid: 12, faintWavelengths: 3 },
   high: { grid: 48, wavelengths: 7, faintGrid: 48, faintWavelengths: 7 },

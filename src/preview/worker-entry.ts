@@ -9,7 +9,7 @@
 import { parentPort } from 'node:worker_threads';
 import { FloatImage } from '../raster/image.js';
 import type { ElementName, ResolvedShot } from '../shot/types.js';
-import { addScaled, drawLayers, jobShots, type LayerJob } from './layer-jobs.js';
+import { addScaled, drawLayers, setScaled, jobShots, type LayerJob } from './layer-jobs.js';
 
 export type ToPreviewWorker =
   | { type: 'init'; version: number; shot: ResolvedShot; jobs: LayerJob[] }
@@ -55,11 +55,15 @@ parentPort!.on('message', (msg: ToPreviewWorker) => {
     const { widthPx: w, heightPx: h } = current.shot.frame;
     if (!scratch || scratch.width !== w || scratch.height !== h) scratch = new FloatImage(w, h);
     const sum = scratch.data;
-    sum.fill(0);
+    // the first layer drawn is written, not added to a cleared image: a pass over the frame less
+    let first = true;
     current.jobs.forEach((job, k) => {
       const gain = msg.gains[job.element] ?? 0;
-      if (gain > 0) addScaled(sum, imgs[k].data, gain, w * 4);
+      if (!(gain > 0)) return;
+      (first ? setScaled : addScaled)(sum, imgs[k].data, gain, w * 4);
+      first = false;
     });
+    if (first) sum.fill(0);
     parentPort!.postMessage({ version: msg.version, n: msg.n, sum } satisfies FromPreviewWorker);
   } catch (e) {
     parentPort!.postMessage({ version: msg.version, n: msg.n, error: e instanceof Error ? e.message : String(e) } satisfies FromPreviewWorker);

@@ -157,16 +157,22 @@ export interface GhostSettings {
   /** when not empty, only these ghosts are drawn */
   solo: string[];
   /**
-   * never from a shot file: draw only the ranked ghosts whose rank is `index` modulo `count` (the
-   * preview splits one frame's ghosts between threads; the shares add up to the whole)
+   * never from a shot file: draw only some of the ranked ghosts (the preview splits one frame's
+   * ghosts between threads; shares that tile [0, 1) add up to the whole)
    */
   share?: GhostShare;
 }
 
+/**
+ * The ranked ghosts whose place frac(rank x 0.618...) lies in [from, to): the golden-ratio sequence
+ * spreads neighbouring ranks over the interval, so any share gets big and small ghosts alike, in
+ * proportion to its width (inShare in elements/ghosts/view.ts).
+ */
 export interface GhostShare {
-  index: number;
-  count: number;
+  from: number;
+  to: number;
 }
+
 
 export interface GhostPathControl {
   enabled: boolean;

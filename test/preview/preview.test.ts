@@ -283,7 +283,18 @@ flare:
 describe('the preview\'s split of a frame between threads', () => {
   it('gives every element to one thread, and the ghosts to all in shares', () => {
     const split = splitLayers(['core', 'glow', 'ghosts', 'starburst', 'streak'], 2);
-    expect(split.map((jobs) => jobs.filter((j) => j.element === 'ghosts').map((j) => j.share))).toEqual([[{ index: 0, count: 2 }], [{ index: 1, count: 2 }]]);
+    // glow (1.9) goes to one thread, starburst, streak and core (0.8) to the other; the ghosts (10)
+    // even the two out at 6.35 each: shares of 0.445 and 0.555 that tile [0, 1)
+    const shares = split.map((jobs) => jobs.filter((j) => j.element === 'ghosts').map((j) => j.share!));
+    expect(shares.map((s) => s.length)).toEqual([1, 1]);
+    expect(shares[0][0].from).toBe(0);
+    expect(shares[0][0].to).toBe(shares[1][0].from);
+    expect(shares[1][0].to).toBe(1);
+    const costOf = (t: number) => split[t].reduce((sum, j) => sum + (j.element === 'ghosts' ? 10 * (j.share!.to - j.share!.from) : { glow: 1.9, starburst: 0.6, streak: 0.1, core: 0.1 }[j.element as 'glow']), 0);
+    expect(costOf(0)).toBeCloseTo(costOf(1), 9);
+    // a thread already at or over the level gets no ghosts: of twelve, the glow's and the dust's
+    const many = splitLayers(['ghosts', 'glow', 'dust'], 12);
+    expect(many.filter((jobs) => jobs.some((j) => j.element === 'ghosts')).length).toBe(10);
     const others = split.flat().filter((j) => j.element !== 'ghosts').map((j) => j.element).sort();
     expect(others).toEqual(['core', 'glow', 'starburst', 'streak']);
     expect(splitLayers(['ghosts', 'glow'], 1)).toEqual([[{ element: 'ghosts' }, { element: 'glow' }]]);
@@ -296,7 +307,7 @@ describe('the preview\'s split of a frame between threads', () => {
       writeFileSync(file, SHOT);
       const shot = await loadShot(file);
       const [whole] = drawLayers(shot, jobShots(shot, [{ element: 'ghosts' }]), 3);
-      const halves = [0, 1].map((index) => drawLayers(shot, jobShots(shot, [{ element: 'ghosts', share: { index, count: 2 } }]), 3)[0]);
+      const halves = [0, 1].map((index) => drawLayers(shot, jobShots(shot, [{ element: 'ghosts', share: [{ from: 0, to: 0.5 }, { from: 0.5, to: 1 }][index] }]), 3)[0]);
       let peak = 0;
       let worst = 0;
       for (let i = 0; i < whole.data.length; i++) {

@@ -19,7 +19,7 @@ import { smearInto, type Plane } from '../../raster/line-smear.js';
 import { chiefLanding, GhostGrid } from './grid.js';
 import { cascadeLayers, clearWritten, layersFor, scratchLayersFor, touch, type Layer } from './layers.js';
 import { FAINT_PEAK, INVISIBLE, ghostDrawing } from './lod.js';
-import { lightSlopes, pxPerMm, type GhostFrameSettings, type GhostLight, type GhostMotion, type GhostStats, type GhostView } from './view.js';
+import { inShare, lightSlopes, pxPerMm, type GhostFrameSettings, type GhostLight, type GhostMotion, type GhostStats, type GhostView } from './view.js';
 import type { PathPlan } from '../../optics/trace.js';
 
 export { FAINT_PEAK } from './lod.js';
@@ -61,7 +61,7 @@ export function addGhosts(img: FloatImage, system: LensSystem, view: GhostView, 
   // with motion, each ghost is drawn alone into these and smeared from them into the layers
   const scratch = motion ? scratchLayersFor(motion.scratch.width, motion.scratch.height) : undefined;
   for (let g = 0; g < system.kept; g++) {
-    if (share && g % share.count !== share.index) continue;
+    if (share && !inShare(g, share)) continue;
     const ghost = system.ranked[g];
     // per-ghost switches, gains and tints from the shot
     let own: readonly [number, number, number] = ONE;

@@ -30,8 +30,8 @@ export interface GhostFrameSettings {
    */
   paths?: ReadonlyMap<string, readonly [number, number, number]>;
   only?: boolean;
-  /** draw only the ghosts of rank index modulo count (see GhostSettings.share) */
-  share?: { index: number; count: number };
+  /** draw only the ghosts whose place is in [from, to) (see GhostShare in shot/types.ts) */
+  share?: { from: number; to: number };
   /**
    * the share of the frame's exposure this drawing carries (1 / samples for one shutter sample):
    * which ghosts are skipped or drawn lighter is judged on the light over the whole exposure, so
@@ -81,4 +81,11 @@ export function lightSlopes(system: LensSystem, view: GhostView, xPx: number, yP
   // the image is inverted on the sensor and shown upright: display offset D (mm) needs slope -D/f;
   // an anamorphic front squeezes the horizontal field angle by its squeeze factor
   return [-((xPx - view.opticalCentre[0]) / sx / f) / system.lens.squeeze, -((yPx - view.opticalCentre[1]) / sy / f)];
+}
+
+/** Whether the ghost of this rank is in the share: its place frac(rank x 0.618...) in [from, to). */
+export function inShare(rank: number, share: { from: number; to: number }): boolean {
+  const p = rank * 0.6180339887498949;
+  const place = p - Math.floor(p);
+  return place >= share.from && place < share.to;
 }
