@@ -148,7 +148,6 @@ export class GridRaster {
     const minY = Math.max(0, Math.ceil(Math.min(y0, y1, y2) - 0.5));
     const maxY = Math.min(layer.h - 1, Math.floor(Math.max(y0, y1, y2) - 0.5));
     if (minX > maxX || minY > maxY) return;
-    touch(layer, minX, minY, maxX, maxY);
     const inv = 1 / area2;
     this.ex1 = (y2 - y0) * inv;
     this.ey1 = (y1 - y0) * inv;
@@ -231,6 +230,14 @@ export class GridRaster {
     const sl0 = ex1;
     const sl1 = -ey1;
     const sl2 = -(ex1 - ey1);
+    // the pixels the rows' spans reach after the masks: the layer's written box grows by these
+    // only (a triangle the barrel or the iris cuts away leaves it as it was), so what reads the
+    // box (the shutter's smear of a ghost, the cascade) covers what was drawn, not the ray grid's
+    // whole reach
+    let wx0 = maxX + 1;
+    let wx1 = minX - 1;
+    let wy0 = maxY + 1;
+    let wy1 = minY - 1;
     for (let py = minY; py <= maxY; py++) {
       const oy = py + 0.5 - y0;
       // the row's span inside the triangle: barycentric weights wb = ox ex1 - oy ey2 and
@@ -315,6 +322,10 @@ export class GridRaster {
         inFrom = pxTo + 1;
         inTo = pxTo;
       }
+      if (pxFrom < wx0) wx0 = pxFrom;
+      if (pxTo > wx1) wx1 = pxTo;
+      if (py < wy0) wy0 = py;
+      wy1 = py;
       const row = py * w;
       // the interior, then the left and the right edge stretches (one loop body for both)
       for (let px = inFrom; px <= inTo; px++) {
@@ -353,6 +364,7 @@ export class GridRaster {
         }
       }
     }
+    if (wx1 >= wx0) touch(layer, wx0, wy0, wx1, wy1);
   }
 
   /**
