@@ -184,11 +184,14 @@ export function withManifestLock<T>(manifestFile: string, fn: () => T, timeoutMs
       if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
       let stale = false;
       try {
-        const pid = Number(readFileSync(lock, 'utf8'));
+        const text = readFileSync(lock, 'utf8');
+        const pid = Number(text);
         // a process id means nothing on another machine sharing the folder: a lock whose process is
-        // gone here is taken over only once it is a few seconds old (locks are held for milliseconds)
+        // gone here is taken over only once it is a few seconds old (locks are held for milliseconds).
+        // An empty lock that old was left by a process killed between creating it and writing its id.
         const age = Date.now() - statSync(lock).mtimeMs;
-        stale = age > STALE_LOCK_MS || (Number.isInteger(pid) && pid > 0 && !alive(pid) && age > DEAD_LOCK_MS);
+        const gone = text.trim() === '' || (Number.isInteger(pid) && pid > 0 && !alive(pid));
+        stale = age > STALE_LOCK_MS || (gone && age > DEAD_LOCK_MS);
       } catch {
         // the holder removed it meanwhile (or wrote nothing yet): try again
       }

@@ -153,7 +153,7 @@ describe('parallel rendering', () => {
     expect(named.length).toBeGreaterThan(0);
     for (const f of named) expect(() => decode(readFileSync(path.join(out, f)))).not.toThrow();
     const r = spawnSync(process.execPath, [bin, 'render', path.join(dir, 'shot.yaml'), '--jobs', '2', '--quiet']);
-    expect(r.status).toBe(0);
+    expect(r.status, r.stderr.toString()).toBe(0);
     expect(pngBytes(out)).toEqual(pngBytes(path.join(ref, 'out')));
     expect(existsSync(manifestPath(path.join(out, 'f.####.png')))).toBe(true);
   });

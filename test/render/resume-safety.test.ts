@@ -12,7 +12,7 @@ import { describe, expect, it } from 'vitest';
 import { loadShot } from '../../src/io/load-shot.js';
 import { encodePng } from '../../src/io/png.js';
 import { FloatImage } from '../../src/raster/image.js';
-import { manifestPath, readManifests, shotHash } from '../../src/io/manifest.js';
+import { manifestPath, readManifests, shotHash, withManifestLock } from '../../src/io/manifest.js';
 import { verifySequence } from '../../src/render/verify.js';
 import { cli, pngBytes, tempDir } from '../helpers.js';
 
@@ -132,6 +132,32 @@ describe('resume and output safety', () => {
     expect(Object.keys(manifestOf(dir).frames)).toHaveLength(24);
     expect(manifestOf(dir).pending).toBeUndefined();
     expect((await cli(['verify', file])).code).toBe(0);
+  });
+
+  it('takes over a manifest lock left by a killed render (empty, or its process gone), not one a live process holds', async () => {
+    const { spawnSync } = await import('node:child_process');
+    const dir = tempDir();
+    const file = shotWithMatte(dir);
+    mkdirSync(path.join(dir, 'out'));
+    const mine = manifestPath(path.join(dir, 'out', 'f.####.png'));
+    const lock = path.join(path.dirname(mine), `.${path.basename(mine)}.lock`);
+    const old = (Date.now() - 5000) / 1000;
+    // killed between creating the lock and writing its process id into it
+    writeFileSync(lock, '');
+    utimesSync(lock, old, old);
+    expect((await cli(['render', file, '--frames', '1-2', '--quiet'])).code).toBe(0);
+    expect(existsSync(lock)).toBe(false);
+    // killed while holding it: the process id is of a process that has ended
+    const ended = spawnSync(process.execPath, ['-e', '0']).pid;
+    writeFileSync(lock, String(ended));
+    utimesSync(lock, old, old);
+    expect((await cli(['render', file, '--frames', '3-4', '--quiet'])).code).toBe(0);
+    expect(Object.keys(manifestOf(dir).frames)).toEqual(['1', '2', '3', '4']);
+    // held by a running process (this one): waited for, then refused with a reason
+    writeFileSync(lock, String(process.pid));
+    utimesSync(lock, old, old);
+    expect(() => withManifestLock(mine, () => 0, 300)).toThrow(/held by another render/);
+    expect(existsSync(lock)).toBe(true);
   });
 
   it('never replaces a file it did not write, unless --force says so, and says so before rendering', async () => {
